@@ -1,0 +1,99 @@
+// Project configuration: `.ferrule.toml` at the workspace root (read by the CLI and the language
+// server alike) merged with editor settings. Parsed with smol-toml; every problem names the file
+// and the key.
+
+import { parse as parseToml } from "smol-toml";
+import { ALL_TRIPLES, parseTriple, type Triple } from "../model/targets.js";
+import type { Severity } from "../model/types.js";
+
+export const CONFIG_FILE = ".ferrule.toml";
+
+export interface FerruleConfig {
+  targets: Triple[];
+  includePaths: string[];
+  exclude: string[];
+  maxFileBytes: number;
+  /** Per-rule severity override; "off" disables the rule. */
+  severity: Record<string, Severity | "off">;
+  /** Per-family settings (e.g. port-declaration patterns), passed to the model. */
+  families: Record<string, unknown>;
+}
+
+export const DEFAULTS: FerruleConfig = {
+  targets: [...ALL_TRIPLES],
+  includePaths: [],
+  exclude: [],
+  maxFileBytes: 2_000_000,
+  severity: {},
+  families: {},
+};
+
+export class ConfigError extends Error {
+  constructor(readonly file: string, readonly key: string, message: string) {
+    super(`${file}: ${key ? `key \`${key}\`: ` : ""}${message}`);
+  }
+}
+
+const SEVERITIES = ["error", "warning", "info", "hint", "off"];
+
+function strList(v: unknown, file: string, key: string): string[] {
+  if (!Array.isArray(v) || v.some((x) => typeof x !== "string")) throw new ConfigError(file, key, "expected a list of strings");
+  return v as string[];
+}
+
+/** Validates a plain object (from TOML or from editor settings) into a config. Throws ConfigError. */
+export function configFromObject(obj: Record<string, unknown>, file: string, base: FerruleConfig = DEFAULTS): FerruleConfig {
+  const cfg: FerruleConfig = { ...base, severity: { ...base.severity }, families: { ...base.families } };
+  for (const [k, v] of Object.entries(obj)) {
+    switch (k) {
+      case "targets": {
+        const list = strList(v, file, "targets");
+        const out: Triple[] = [];
+        for (const t of list) {
+          const p = parseTriple(t);
+          if (!p) throw new ConfigError(file, "targets", `unknown target \`${t}\` (known: ${ALL_TRIPLES.join(", ")})`);
+          out.push(p);
+        }
+        if (out.length === 0) throw new ConfigError(file, "targets", "needs at least one target");
+        cfg.targets = out;
+        break;
+      }
+      case "include_paths":
+      case "includePaths":
+        cfg.includePaths = strList(v, file, k);
+        break;
+      case "exclude":
+        cfg.exclude = strList(v, file, k);
+        break;
+      case "max_file_bytes":
+      case "maxFileBytes":
+        if (typeof v !== "number" && typeof v !== "bigint") throw new ConfigError(file, k, "expected a number");
+        cfg.maxFileBytes = Number(v);
+        break;
+      case "rules":
+      case "severity": {
+        if (typeof v !== "object" || v === null || Array.isArray(v)) throw new ConfigError(file, k, "expected a table of rule = severity");
+        for (const [rule, sev] of Object.entries(v as Record<string, unknown>)) {
+          if (typeof sev !== "string" || !SEVERITIES.includes(sev)) throw new ConfigError(file, `${k}.${rule}`, `expected one of ${SEVERITIES.join(", ")}`);
+          cfg.severity[rule] = sev as Severity | "off";
+        }
+        break;
+      }
+      default:
+        if (typeof v === "object" && v !== null && !Array.isArray(v)) cfg.families[k] = v;
+        else throw new ConfigError(file, k, "unknown setting");
+    }
+  }
+  return cfg;
+}
+
+export function parseConfigText(text: string, file: string, base: FerruleConfig = DEFAULTS): FerruleConfig {
+  let obj: Record<string, unknown>;
+  try {
+    obj = parseToml(text) as Record<string, unknown>;
+  } catch (e) {
+    const m = (e as Error).message.split("\n")[0];
+    throw new ConfigError(file, "", `not valid TOML: ${m}`);
+  }
+  return configFromObject(obj, file, base);
+}

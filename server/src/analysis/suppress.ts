@@ -1,0 +1,40 @@
+// Inline suppressions of our own design. A comment on the finding's line, or on the line above:
+//
+//     // ferrule-allow(param-signedness): lengths never exceed 2^31 on this block
+//     /* ferrule-allow(rule-a, rule-b): reason */
+//
+// The reason after the colon is required; a suppression without one suppresses nothing and is
+// itself reported, so every silenced finding has a written justification next to it.
+
+import type { Model } from "../model/boundary.js";
+import type { Finding } from "../rules/api.js";
+import type { Suppression } from "../model/types.js";
+
+export type { Suppression };
+
+export const SUPPRESSION_RULE = "suppression-without-reason";
+
+export function applySuppressions(findings: Finding[], model: Model): Finding[] {
+  const out: Finding[] = [];
+  const extraFindings: Finding[] = [];
+  const byFile = new Map<string, Suppression[]>();
+  for (const f of model.files.values()) {
+    const s = (f.extra.suppressions as Suppression[] | undefined) ?? [];
+    if (!s.length) continue;
+    byFile.set(f.file, s);
+    for (const x of s) {
+      if (!x.reason) {
+        extraFindings.push({
+          rule: SUPPRESSION_RULE, severity: "warning", range: x.range, related: [],
+          message: `this ferrule-allow comment has no reason, so it suppresses nothing: write \`ferrule-allow(${x.rules.join(", ") || "rule-id"}): why this is safe\``,
+        });
+      }
+    }
+  }
+  for (const f of findings) {
+    const sups = byFile.get(f.range.file);
+    const hit = sups?.some((s) => s.reason && (s.rules.includes(f.rule) || s.rules.includes("all")) && (s.endLine === f.range.line || s.endLine === f.range.line - 1 || s.line === f.range.line));
+    if (!hit) out.push(f);
+  }
+  return [...out, ...extraFindings];
+}

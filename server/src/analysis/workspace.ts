@@ -1,0 +1,196 @@
+// The analysis session: file contents → facts (cached by content) → model → findings.
+// Used by both the CLI and the language server. The only place (with the CLI) that touches the
+// file system, and it only reads.
+
+import * as fs from "node:fs";
+import * as path from "node:path";
+import { createHash } from "node:crypto";
+import { extractFile, initParsers } from "../extract/index.js";
+import { langOf } from "../parse/parser.js";
+import { Model } from "../model/boundary.js";
+import type { FileFacts } from "../model/types.js";
+import { runRules, type Finding } from "../rules/index.js";
+import { DEFAULTS, type FerruleConfig } from "./config.js";
+import { applySuppressions } from "./suppress.js";
+
+export const SKIP_DIRS = new Set(["target", "node_modules", ".git", "build", "out", "dist", ".cache", ".svn", ".hg", "__pycache__"]);
+
+function isSkippedDir(name: string): boolean {
+  return SKIP_DIRS.has(name) || name.startsWith("cmake-build-") || (name.startsWith(".") && name !== "." && name !== "..");
+}
+
+interface Entry {
+  hash: string;
+  facts: FileFacts;
+}
+
+export interface WalkResult {
+  files: string[];
+  notices: Finding[];
+}
+
+/** Lists the source files under the given paths (absolute), never following a symlink loop. */
+export function listSources(paths: string[], exclude: string[] = [], onProgress?: (n: number) => void): WalkResult {
+  const files: string[] = [];
+  const notices: Finding[] = [];
+  const seen = new Set<string>();
+  const excluded = (p: string) => exclude.some((g) => globMatch(g, p));
+  const visit = (p: string, depth: number) => {
+    let st: fs.Stats;
+    try {
+      st = fs.statSync(p);
+    } catch (e) {
+      notices.push(skipNotice(p, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`));
+      return;
+    }
+    let real: string;
+    try { real = fs.realpathSync(p); } catch { real = p; }
+    if (seen.has(real)) return;
+    seen.add(real);
+    if (st.isDirectory()) {
+      if (depth > 64) return;
+      let names: string[];
+      try { names = fs.readdirSync(p).sort(); } catch (e) {
+        notices.push(skipNotice(p, `cannot list: ${(e as NodeJS.ErrnoException).code}`));
+        return;
+      }
+      for (const n of names) {
+        if (isSkippedDir(n)) {
+          try { if (fs.statSync(path.join(p, n)).isDirectory()) continue; } catch { continue; }
+        }
+        visit(path.join(p, n), depth + 1);
+      }
+    } else if (st.isFile() && langOf(p) && !excluded(p)) {
+      files.push(p);
+      if (onProgress && files.length % 200 === 0) onProgress(files.length);
+    }
+  };
+  for (const p of paths) visit(path.resolve(p), 0);
+  return { files, notices };
+}
+
+function skipNotice(file: string, why: string): Finding {
+  return { rule: "file-skipped", severity: "info", message: `skipped: ${file}: ${why}`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 }, related: [] };
+}
+
+function globMatch(glob: string, p: string): boolean {
+  const re = new RegExp("(^|/)" + glob.replace(/[.+^${}()|[\]\\]/g, "\\$&").replace(/\*\*\/?/g, "\u0000").replace(/\*/g, "[^/]*").replace(/\?/g, "[^/]").replace(/\u0000/g, ".*") + "($|/)");
+  return re.test(p);
+}
+
+export class Workspace {
+  private entries = new Map<string, Entry>();
+  private cachedModel: Model | undefined;
+  private cachedFindings: Finding[] | undefined;
+  readonly walkNotices: Finding[] = [];
+
+  constructor(public config: FerruleConfig = DEFAULTS) {}
+
+  static async create(config?: FerruleConfig): Promise<Workspace> {
+    await initParsers();
+    return new Workspace(config);
+  }
+
+  has(file: string): boolean {
+    return this.entries.has(file);
+  }
+
+  files(): string[] {
+    return [...this.entries.keys()];
+  }
+
+  facts(file: string): FileFacts | undefined {
+    return this.entries.get(file)?.facts;
+  }
+
+  /** Sets a file's text; returns false when the content did not change (nothing to redo). */
+  update(file: string, text: string): boolean {
+    const hash = createHash("sha1").update(text).digest("hex");
+    const old = this.entries.get(file);
+    if (old && old.hash === hash) return false;
+    this.entries.set(file, { hash, facts: extractFile(file, text, { maxFileBytes: this.config.maxFileBytes }) });
+    this.invalidate();
+    return true;
+  }
+
+  remove(file: string): void {
+    if (this.entries.delete(file)) this.invalidate();
+  }
+
+  /** Reads a file from disk into the workspace; unreadable files become a notice. */
+  load(file: string): void {
+    let text: string;
+    try {
+      const st = fs.statSync(file);
+      if (st.size > this.config.maxFileBytes * 4) {
+        this.setFacts(file, skipFacts(file, `${st.size} bytes, above the limit of ${this.config.maxFileBytes} (setting max_file_bytes)`));
+        return;
+      }
+      text = fs.readFileSync(file, "utf8");
+    } catch (e) {
+      this.setFacts(file, skipFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`));
+      return;
+    }
+    this.update(file, text);
+  }
+
+  private setFacts(file: string, facts: FileFacts) {
+    this.entries.set(file, { hash: "", facts });
+    this.invalidate();
+  }
+
+  loadAll(paths: string[], onProgress?: (n: number, total: number) => void): void {
+    const walk = listSources(paths, this.config.exclude);
+    this.walkNotices.push(...walk.notices);
+    walk.files.forEach((f, i) => {
+      this.load(f);
+      if (onProgress && i % 50 === 0) onProgress(i, walk.files.length);
+    });
+  }
+
+  invalidate(): void {
+    this.cachedModel = undefined;
+    this.cachedFindings = undefined;
+  }
+
+  model(): Model {
+    this.cachedModel ??= new Model(
+      [...this.entries.values()].map((e) => e.facts),
+      { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families },
+    );
+    return this.cachedModel;
+  }
+
+  /** All findings, with severity overrides and suppressions applied, sorted by place. */
+  check(): Finding[] {
+    if (this.cachedFindings) return this.cachedFindings;
+    const model = this.model();
+    let out = [...this.walkNotices, ...runRules(model)];
+    out = out.flatMap((f) => {
+      const s = this.config.severity[f.rule];
+      if (s === "off") return [];
+      return s ? [{ ...f, severity: s }] : [f];
+    });
+    out = applySuppressions(out, model);
+    out = dedupe(out);
+    out.sort((a, b) => a.range.file.localeCompare(b.range.file) || a.range.line - b.range.line || a.range.col - b.range.col || a.rule.localeCompare(b.rule));
+    this.cachedFindings = out;
+    return out;
+  }
+}
+
+function skipFacts(file: string, why: string): FileFacts {
+  const f = extractFile(file, "");
+  f.notices.push({ rule: "file-skipped", severity: "info", message: `skipped: ${file}: ${why}`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 } });
+  return f;
+}
+
+function dedupe(fs_: Finding[]): Finding[] {
+  const seen = new Set<string>();
+  return fs_.filter((f) => {
+    const k = `${f.rule}|${f.range.file}|${f.range.line}|${f.range.col}|${f.message}`;
+    if (seen.has(k)) return false;
+    seen.add(k);
+    return true;
+  });
+}

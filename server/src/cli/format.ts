@@ -1,0 +1,127 @@
+// Output formats of `ferrule check`: text, JSON (version 1, fixed interface) and SARIF 2.1.0.
+
+import * as path from "node:path";
+import type { Finding, RuleMeta } from "../rules/api.js";
+
+export interface JsonFinding {
+  rule: string;
+  severity: Finding["severity"];
+  file: string;
+  line: number;
+  column: number;
+  endLine: number;
+  endColumn: number;
+  message: string;
+  related: { file: string; line: number; column: number; message: string }[];
+  targets?: string[];
+  fixes?: { title: string; edits: { file: string; line: number; column: number; endLine: number; endColumn: number; newText: string }[] }[];
+}
+
+export const CLEAN_NOTE = "ferrule is an aid, not a proof of memory safety: a clean run means these checks found nothing, not that the seam is safe.";
+
+export function rel(cwd: string, file: string): string {
+  const r = path.relative(cwd, file);
+  return r.startsWith("..") || path.isAbsolute(r) ? file : r.split(path.sep).join("/");
+}
+
+export function toJsonFinding(f: Finding, cwd: string): JsonFinding {
+  const j: JsonFinding = {
+    rule: f.rule,
+    severity: f.severity,
+    file: rel(cwd, f.range.file),
+    line: f.range.line + 1,
+    column: f.range.col + 1,
+    endLine: f.range.endLine + 1,
+    endColumn: f.range.endCol + 1,
+    message: f.message,
+    related: f.related.map((r) => ({ file: rel(cwd, r.range.file), line: r.range.line + 1, column: r.range.col + 1, message: r.message })),
+  };
+  if (f.targets) j.targets = f.targets;
+  return j;
+}
+
+export function formatJson(findings: JsonFinding[]): string {
+  return JSON.stringify({ version: 1, findings }, null, 2) + "\n";
+}
+
+export function formatText(findings: JsonFinding[], color: boolean): string {
+  const c = (code: string, s: string) => (color ? `\x1b[${code}m${s}\x1b[0m` : s);
+  const sevColor: Record<string, string> = { error: "31", warning: "33", info: "36", hint: "2" };
+  const lines: string[] = [];
+  for (const f of findings) {
+    lines.push(`${f.file}:${f.line}:${f.column}: ${c(sevColor[f.severity] ?? "0", f.severity)}: ${f.message} [${f.rule}]`);
+    for (const r of f.related) lines.push(`    ${r.file}:${r.line}:${r.column}: ${r.message}`);
+    for (const fx of f.fixes ?? []) {
+      lines.push(`    fix: ${fx.title}`);
+      for (const e of fx.edits) {
+        const shown = e.newText.length > 200 ? e.newText.slice(0, 200) + "…" : e.newText;
+        lines.push(`      ${e.file}:${e.line}:${e.column}-${e.endLine}:${e.endColumn} → ${JSON.stringify(shown)}`);
+      }
+    }
+  }
+  const counts = { error: 0, warning: 0, info: 0, hint: 0 };
+  for (const f of findings) counts[f.severity]++;
+  if (findings.length === 0) lines.push(`no findings. ${CLEAN_NOTE}`);
+  else lines.push(`${findings.length} finding(s): ${counts.error} error(s), ${counts.warning} warning(s), ${counts.info + counts.hint} note(s)`);
+  return lines.join("\n") + "\n";
+}
+
+const SARIF_LEVEL: Record<string, string> = { error: "error", warning: "warning", info: "note", hint: "note" };
+
+export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version: string, rootUri: string): string {
+  const ruleIndex = new Map(rules.map((r, i) => [r.id, i]));
+  const loc = (file: string, line: number, column: number, endLine?: number, endColumn?: number) => ({
+    physicalLocation: {
+      artifactLocation: { uri: file.split(path.sep).join("/"), uriBaseId: "%SRCROOT%" },
+      region: { startLine: line, startColumn: column, ...(endLine ? { endLine, endColumn } : {}) },
+    },
+  });
+  const log = {
+    $schema: "https://json.schemastore.org/sarif-2.1.0.json",
+    version: "2.1.0",
+    runs: [
+      {
+        tool: {
+          driver: {
+            name: "ferrule",
+            version,
+            informationUri: "https://example.invalid/ferrule",
+            rules: rules.map((r) => ({
+              id: r.id,
+              name: r.id.replace(/(^|-)(\w)/g, (_m, _d, ch: string) => ch.toUpperCase()),
+              shortDescription: { text: r.summary },
+              fullDescription: { text: r.why },
+              help: { text: `${r.summary} ${r.why}` },
+              defaultConfiguration: { level: SARIF_LEVEL[r.severity] },
+            })),
+          },
+        },
+        originalUriBaseIds: { "%SRCROOT%": { uri: rootUri.endsWith("/") ? rootUri : rootUri + "/" } },
+        results: findings.map((f) => {
+          const res: Record<string, unknown> = {
+            ruleId: f.rule,
+            level: SARIF_LEVEL[f.severity],
+            message: { text: f.message },
+            locations: [loc(f.file, f.line, f.column, f.endLine, f.endColumn)],
+          };
+          const idx = ruleIndex.get(f.rule);
+          if (idx !== undefined) res.ruleIndex = idx;
+          if (f.related.length) {
+            res.relatedLocations = f.related.map((r, i) => ({ id: i + 1, ...loc(r.file, r.line, r.column), message: { text: r.message } }));
+          }
+          if (f.fixes?.length) {
+            res.fixes = f.fixes.map((fx) => ({
+              description: { text: fx.title },
+              artifactChanges: fx.edits.map((e) => ({
+                artifactLocation: { uri: e.file, uriBaseId: "%SRCROOT%" },
+                replacements: [{ deletedRegion: { startLine: e.line, startColumn: e.column, endLine: e.endLine, endColumn: e.endColumn }, insertedContent: { text: e.newText } }],
+              })),
+            }));
+          }
+          return res;
+        }),
+      },
+    ],
+  };
+  return JSON.stringify(log, null, 2) + "\n";
+}

@@ -1,0 +1,2 @@
+import { main } from "./main.js";
+void main();

@@ -1,0 +1,199 @@
+// The command line: `ferrule check`, `ferrule layout`, `ferrule lsp --stdio`. A thin adapter over
+// analysis/ and rules/: it reads arguments and files, prints, and sets the exit code.
+//   exit 0: clean (no finding at error severity); 1: findings at error severity; 2: usage/config error.
+
+import * as fs from "node:fs";
+import * as path from "node:path";
+import { pathToFileURL } from "node:url";
+import { Workspace } from "../analysis/workspace.js";
+import { CONFIG_FILE, ConfigError, DEFAULTS, parseConfigText, type FerruleConfig } from "../analysis/config.js";
+import { ALL_TRIPLES, parseTriple, type Triple } from "../model/targets.js";
+import { allRules } from "../rules/index.js";
+import { formatJson, formatSarif, formatText, toJsonFinding, type JsonFinding } from "./format.js";
+import { formatLayoutText, layoutTypes } from "./layout-cmd.js";
+import { fixesFor } from "../fixes/index.js";
+
+export const VERSION = "0.1.0";
+
+class UsageError extends Error {}
+
+const HELP = `ferrule ${VERSION} — checks the C ABI seam between Rust and C/C++
+
+usage:
+  ferrule check [--format text|json|sarif] [--target TRIPLE]... [--config FILE] [--show-fixes] [PATH...]
+  ferrule layout [--target TRIPLE]... [--format json|text] PATH...
+  ferrule lsp --stdio
+
+targets: ${ALL_TRIPLES.join(", ")} (also: x86_64, aarch64, armv7, i686, x86_64-windows)
+exit codes: 0 clean, 1 findings at error severity, 2 usage or configuration error
+`;
+
+interface Opts {
+  cmd: string;
+  format: string;
+  targets: Triple[];
+  paths: string[];
+  config?: string;
+  showFixes: boolean;
+  stdio: boolean;
+}
+
+function parseArgs(argv: string[]): Opts {
+  const [cmd, ...rest] = argv;
+  if (!cmd || cmd === "--help" || cmd === "-h" || cmd === "help") throw new UsageError("");
+  if (!["check", "layout", "lsp"].includes(cmd)) throw new UsageError(`unknown command \`${cmd}\` (expected check, layout or lsp)`);
+  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false };
+  for (let i = 0; i < rest.length; i++) {
+    const a = rest[i]!;
+    const val = (): string => {
+      const eq = a.indexOf("=");
+      if (eq > 0) return a.slice(eq + 1);
+      const v = rest[++i];
+      if (v === undefined) throw new UsageError(`${a} needs a value`);
+      return v;
+    };
+    const flag = a.split("=")[0];
+    if (flag === "--format") {
+      const v = val();
+      const ok = cmd === "layout" ? ["json", "text"] : ["text", "json", "sarif"];
+      if (!ok.includes(v)) throw new UsageError(`unknown format \`${v}\` (expected ${ok.join(", ")})`);
+      o.format = v;
+    } else if (flag === "--target") {
+      const v = val();
+      const t = parseTriple(v);
+      if (!t) throw new UsageError(`unknown target \`${v}\` (known: ${ALL_TRIPLES.join(", ")})`);
+      if (!o.targets.includes(t)) o.targets.push(t);
+    } else if (flag === "--config") o.config = val();
+    else if (flag === "--show-fixes") o.showFixes = true;
+    else if (flag === "--stdio") o.stdio = true;
+    else if (a === "--help" || a === "-h") throw new UsageError("");
+    else if (a.startsWith("-")) throw new UsageError(`unknown option \`${a}\``);
+    else o.paths.push(a);
+  }
+  if (cmd === "lsp" && !o.stdio) throw new UsageError("lsp needs --stdio");
+  return o;
+}
+
+function findConfig(paths: string[], cwd: string): string | undefined {
+  const starts = paths.length ? paths.map((p) => path.resolve(cwd, p)) : [cwd];
+  for (const s of starts) {
+    let dir = fs.existsSync(s) && fs.statSync(s).isDirectory() ? s : path.dirname(s);
+    for (let i = 0; i < 40; i++) {
+      const c = path.join(dir, CONFIG_FILE);
+      if (fs.existsSync(c)) return c;
+      const up = path.dirname(dir);
+      if (up === dir) break;
+      dir = up;
+    }
+  }
+  return undefined;
+}
+
+export function loadConfig(file: string | undefined, cwd: string): FerruleConfig {
+  if (!file) return DEFAULTS;
+  const shown = path.relative(cwd, file) || file;
+  let text: string;
+  try {
+    text = fs.readFileSync(file, "utf8");
+  } catch (e) {
+    throw new ConfigError(shown, "", `cannot read: ${(e as NodeJS.ErrnoException).code}`);
+  }
+  const cfg = parseConfigText(text, shown);
+  // include paths are relative to the config file's folder
+  cfg.includePaths = cfg.includePaths.map((p) => path.resolve(path.dirname(file), p));
+  return cfg;
+}
+
+export interface RunIO {
+  cwd: string;
+  stdout: (s: string) => void;
+  stderr: (s: string) => void;
+  isTTY: boolean;
+}
+
+export async function run(argv: string[], io: RunIO): Promise<number> {
+  let o: Opts;
+  try {
+    o = parseArgs(argv);
+  } catch (e) {
+    if (e instanceof UsageError) {
+      if (e.message) {
+        io.stderr(`ferrule: ${e.message}\n`);
+        return 2;
+      }
+      io.stdout(HELP);
+      return argv.length ? 0 : 2;
+    }
+    throw e;
+  }
+  if (o.cmd === "lsp") {
+    const { startServer } = await import("../lsp/server.js");
+    startServer();
+    return -1; // keeps running
+  }
+  const paths = o.paths.length ? o.paths : ["."];
+  for (const p of paths) {
+    if (!fs.existsSync(path.resolve(io.cwd, p))) {
+      io.stderr(`ferrule: no such file or folder: ${p}\n`);
+      return 2;
+    }
+  }
+  let cfg: FerruleConfig;
+  try {
+    const cfgFile = o.config ? path.resolve(io.cwd, o.config) : findConfig(paths, io.cwd);
+    cfg = loadConfig(cfgFile, io.cwd);
+  } catch (e) {
+    if (e instanceof ConfigError) {
+      io.stderr(`ferrule: configuration error: ${e.message}\n`);
+      return 2;
+    }
+    throw e;
+  }
+  if (o.targets.length) cfg = { ...cfg, targets: o.targets };
+  const ws = await Workspace.create(cfg);
+  const progress = io.isTTY
+    ? (n: number, total: number) => io.stderr(`\rferrule: reading ${n}/${total} files…`)
+    : undefined;
+  ws.loadAll(paths.map((p) => path.resolve(io.cwd, p)), progress);
+  if (progress) io.stderr("\r\x1b[K");
+
+  if (o.cmd === "layout") {
+    if (o.format === "json") io.stdout(JSON.stringify({ version: 1, types: layoutTypes(ws.model(), io.cwd) }, null, 2) + "\n");
+    else io.stdout(formatLayoutText(ws.model(), io.cwd));
+    return 0;
+  }
+
+  const findings = ws.check();
+  const json: JsonFinding[] = findings.map((f) => {
+    const j = toJsonFinding(f, io.cwd);
+    if (o.showFixes) {
+      const fx = fixesFor(f, ws.model());
+      if (fx.length) {
+        j.fixes = fx.map((x) => ({
+          title: x.title,
+          edits: x.edits.map((e) => ({ file: toJsonFinding({ ...f, range: e.range, related: [] }, io.cwd).file, line: e.range.line + 1, column: e.range.col + 1, endLine: e.range.endLine + 1, endColumn: e.range.endCol + 1, newText: e.newText })),
+        }));
+      }
+    }
+    return j;
+  });
+  if (o.format === "json") io.stdout(formatJson(json));
+  else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
+  else io.stdout(formatText(json, io.isTTY && !process.env.NO_COLOR));
+  return findings.some((f) => f.severity === "error") ? 1 : 0;
+}
+
+export async function main(): Promise<void> {
+  try {
+    const code = await run(process.argv.slice(2), {
+      cwd: process.cwd(),
+      stdout: (s) => process.stdout.write(s),
+      stderr: (s) => process.stderr.write(s),
+      isTTY: !!process.stderr.isTTY && !!process.stdout.isTTY,
+    });
+    if (code >= 0) process.exitCode = code;
+  } catch (e) {
+    process.stderr.write(`ferrule: internal error: ${(e as Error).stack ?? e}\n`);
+    process.exitCode = 2;
+  }
+}

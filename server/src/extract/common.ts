@@ -1,0 +1,151 @@
+// Helpers shared by the extractors: ranges, comments, small constant evaluation.
+
+import type { Node } from "../parse/parser.js";
+import type { AbiType, FileFacts, Lang, Range } from "../model/types.js";
+
+export function rangeOf(file: string, n: Node): Range {
+  return {
+    file,
+    line: n.startPosition.row,
+    col: n.startPosition.column,
+    endLine: n.endPosition.row,
+    endCol: n.endPosition.column,
+  };
+}
+
+export function emptyFacts(file: string, lang: Lang): FileFacts {
+  return {
+    file, lang, fns: [], types: [], asserts: [], includes: [], calls: [], classes: [],
+    defines: [], notices: [], hasErrors: false, extra: {},
+  };
+}
+
+/** Comment lines immediately above `n` (siblings), markers stripped, in source order. */
+export function docAbove(n: Node, skipTypes: string[] = ["attribute_item"]): string {
+  const lines: string[] = [];
+  let p = n.previousSibling;
+  let lastRow = n.startPosition.row;
+  while (p) {
+    if (skipTypes.includes(p.type)) {
+      lastRow = p.startPosition.row;
+      p = p.previousSibling;
+      continue;
+    }
+    if (p.type !== "comment" && p.type !== "line_comment" && p.type !== "block_comment") break;
+    if (p.endPosition.row < lastRow - 1) break;
+    lines.unshift(stripComment(p.text));
+    lastRow = p.startPosition.row;
+    p = p.previousSibling;
+  }
+  return lines.join("\n").trim();
+}
+
+/** A trailing comment on the same line as the end of `n`. */
+export function trailingComment(n: Node): string {
+  const s = n.nextSibling;
+  if (s && (s.type === "comment" || s.type === "line_comment") && s.startPosition.row === n.endPosition.row) {
+    return stripComment(s.text);
+  }
+  return "";
+}
+
+export function stripComment(t: string): string {
+  if (t.startsWith("/*")) {
+    return t
+      .replace(/^\/\*+!?/, "")
+      .replace(/\*+\/$/, "")
+      .split("\n")
+      .map((l) => l.replace(/^\s*\*+ ?/, ""))
+      .join("\n")
+      .trim();
+  }
+  return t
+    .split("\n")
+    .map((l) => l.replace(/^\s*\/\/[\/!]?\s?/, ""))
+    .join("\n")
+    .trim();
+}
+
+/** Integer value of a literal text (C or Rust spelling), or null. */
+export function parseIntLit(text: string): number | null {
+  let t = text.replace(/_/g, "").trim();
+  t = t.replace(/(u8|u16|u32|u64|u128|usize|i8|i16|i32|i64|i128|isize)$/, "");
+  t = t.replace(/[uUlL]+$/, "");
+  let v: number;
+  if (/^0[xX][0-9a-fA-F]+$/.test(t)) v = parseInt(t.slice(2), 16);
+  else if (/^0[bB][01]+$/.test(t)) v = parseInt(t.slice(2), 2);
+  else if (/^0[oO][0-7]+$/.test(t)) v = parseInt(t.slice(2), 8);
+  else if (/^0[0-7]+$/.test(t)) v = parseInt(t, 8);
+  else if (/^[0-9]+$/.test(t)) v = parseInt(t, 10);
+  else return null;
+  return Number.isFinite(v) ? v : null;
+}
+
+/**
+ * Evaluates a constant integer expression node (literals, + - * / % << >> | & ^ ~, unary -, parens,
+ * and names found in `names`). Works for both the C and the Rust grammar. Returns null when unknown.
+ */
+export function evalConst(n: Node | null, names: Map<string, number> = new Map(), depth = 0): number | null {
+  if (!n || depth > 200) return null;
+  switch (n.type) {
+    case "number_literal":
+    case "integer_literal":
+      return parseIntLit(n.text);
+    case "char_literal": {
+      const m = /^'(.)'$/.exec(n.text);
+      return m ? m[1]!.charCodeAt(0) : null;
+    }
+    case "parenthesized_expression":
+      return evalConst(n.namedChild(0), names, depth + 1);
+    case "identifier":
+      return names.get(n.text) ?? null;
+    case "unary_expression": {
+      const v = evalConst(n.namedChild(0), names, depth + 1);
+      if (v === null) return null;
+      const op = n.child(0)?.text;
+      if (op === "-") return -v;
+      if (op === "+") return v;
+      if (op === "~" || op === "!") return ~v;
+      return null;
+    }
+    case "binary_expression": {
+      const l = evalConst(n.childForFieldName("left"), names, depth + 1);
+      const r = evalConst(n.childForFieldName("right"), names, depth + 1);
+      const op = n.childForFieldName("operator")?.text ?? n.child(1)?.text;
+      if (l === null || r === null) return null;
+      switch (op) {
+        case "+": return l + r;
+        case "-": return l - r;
+        case "*": return l * r;
+        case "/": return r === 0 ? null : Math.trunc(l / r);
+        case "%": return r === 0 ? null : l % r;
+        case "<<": return r > 52 ? null : l * 2 ** r;
+        case ">>": return Math.floor(l / 2 ** r);
+        case "|": return l | r;
+        case "&": return l & r;
+        case "^": return l ^ r;
+      }
+      return null;
+    }
+    case "type_cast_expression":
+    case "cast_expression":
+      return evalConst(n.childForFieldName("value") ?? n.namedChild(n.namedChildCount - 1), names, depth + 1);
+  }
+  return null;
+}
+
+/** Depth-first walk that never recurses deeper than `maxDepth` (10,000-deep input must not overflow). */
+export function walk(root: Node, visit: (n: Node) => boolean | void, maxDepth = 400): void {
+  const stack: [Node, number][] = [[root, 0]];
+  while (stack.length) {
+    const [n, d] = stack.pop()!;
+    if (visit(n) === false) continue;
+    if (d >= maxDepth) continue;
+    for (let i = n.childCount - 1; i >= 0; i--) {
+      const c = n.child(i);
+      if (c) stack.push([c, d + 1]);
+    }
+  }
+}
+
+export const VOID: AbiType = { k: "void" };

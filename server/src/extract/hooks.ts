@@ -1,0 +1,23 @@
+// Extension points of the extract layer. Rule families that need facts from function bodies
+// (buffer contracts, ownership) register extractors here; each writes plain data into the
+// FileFacts / FnDecl.body it is given and must not keep references to syntax nodes.
+
+import type { Node } from "../parse/parser.js";
+import type { FileFacts, FnDecl } from "../model/types.js";
+
+export type FnBodyExtractor = (fnNode: Node, fn: FnDecl, facts: FileFacts) => void;
+export type FileExtractor = (root: Node, facts: FileFacts) => void;
+
+export const rustExtractors = {
+  /** Called for every Rust function item with a body (exported or not). */
+  fnBody: [] as FnBodyExtractor[],
+  /** Called once per Rust file after the built-in extraction. */
+  file: [] as FileExtractor[],
+};
+
+export const cFileExtractors = {
+  /** Called for every C/C++ function definition at file or namespace scope. */
+  fnBody: [] as FnBodyExtractor[],
+  /** Called once per C/C++ file after the built-in extraction (call sites, classes, ports). */
+  file: [] as FileExtractor[],
+};

@@ -1,0 +1,115 @@
+// Extract layer entry: (path, text) → FileFacts. A pure function of its inputs, so callers may
+// cache the result by content hash. Never throws: trouble becomes a notice on the file.
+
+import { initParsers, isHeader, langOf, parseText, type Tree } from "../parse/parser.js";
+import type { FileFacts, Lang } from "../model/types.js";
+import { emptyFacts } from "./common.js";
+import { extractC } from "./c.js";
+import { extractRust } from "./rust.js";
+import type { Suppression } from "../model/types.js";
+
+export { initParsers };
+
+export const DEFAULT_MAX_FILE_BYTES = 2_000_000;
+
+const ALLOW_RE = /ferrule-allow\(([^)]*)\)\s*(?::\s*(.*?))?\s*(?:\*\/)?$/;
+
+/** Collects `ferrule-allow(rule): reason` comments (comment nodes only, found by a cursor walk). */
+function collectSuppressions(t: Tree, facts: FileFacts): void {
+  const out: Suppression[] = [];
+  const c = t.rootNode.walk();
+  let steps = 0;
+  for (;;) {
+    if (steps++ > 2_000_000) break;
+    const type = c.nodeType;
+    if (type === "comment" || type === "line_comment" || type === "block_comment") {
+      const node = c.currentNode;
+      const m = ALLOW_RE.exec(node.text.trim());
+      if (m) {
+        out.push({
+          line: node.startPosition.row, endLine: node.endPosition.row,
+          rules: m[1]!.split(",").map((x) => x.trim()).filter(Boolean),
+          reason: (m[2] ?? "").trim(),
+          range: { file: facts.file, line: node.startPosition.row, col: node.startPosition.column, endLine: node.endPosition.row, endCol: node.endPosition.column },
+        });
+      }
+    } else if (c.gotoFirstChild()) continue;
+    while (!c.gotoNextSibling()) {
+      if (!c.gotoParent()) { c.delete(); facts.extra.suppressions = out; return; }
+    }
+  }
+  c.delete();
+  facts.extra.suppressions = out;
+}
+
+function countErrors(t: Tree): number {
+  let n = 0;
+  const c = t.rootNode.walk();
+  // Count ERROR/MISSING nodes with a bounded cursor walk (no recursion).
+  let steps = 0;
+  for (;;) {
+    if (steps++ > 200_000) break;
+    if (c.nodeType === "ERROR" || c.nodeIsMissing) n++;
+    if (c.gotoFirstChild()) continue;
+    while (!c.gotoNextSibling()) {
+      if (!c.gotoParent()) { c.delete(); return n; }
+    }
+  }
+  c.delete();
+  return n;
+}
+
+export interface ExtractOptions {
+  maxFileBytes?: number;
+}
+
+export function extractFile(file: string, text: string, opts: ExtractOptions = {}): FileFacts {
+  const lang = langOf(file) ?? "c";
+  const max = opts.maxFileBytes ?? DEFAULT_MAX_FILE_BYTES;
+  if (text.length > max) {
+    const f = emptyFacts(file, lang);
+    f.notices.push({
+      rule: "file-skipped",
+      severity: "info",
+      message: `skipped: ${file} is ${text.length} characters, above the limit of ${max} (setting maxFileBytes)`,
+      range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
+    });
+    return f;
+  }
+  if (text.charCodeAt(0) === 0xfeff) text = " " + text.slice(1); // BOM: keep columns stable
+  let tree: Tree | undefined;
+  try {
+    if (lang === "rust") {
+      tree = parseText("rust", text);
+      const rf = extractRust(file, tree);
+      if (text.includes("ferrule-allow")) collectSuppressions(tree, rf);
+      return rf;
+    }
+    let useLang: Lang = lang;
+    tree = parseText(lang, text);
+    if (lang === "c" && isHeader(file) && tree.rootNode.hasError) {
+      // A .h file may hold C++; keep whichever grammar reads it with fewer errors.
+      const alt = parseText("cpp", text);
+      if (countErrors(alt) < countErrors(tree)) {
+        tree.delete();
+        tree = alt;
+        useLang = "cpp";
+      } else alt.delete();
+    }
+    const facts = extractC(file, tree, useLang);
+    facts.lang = lang === "c" && useLang === "cpp" ? "cpp" : lang;
+    if (text.includes("ferrule-allow")) collectSuppressions(tree, facts);
+    return facts;
+  } catch (e) {
+    const f = emptyFacts(file, lang);
+    f.notices.push({
+      rule: "internal-error",
+      severity: "warning",
+      message: `ferrule could not read ${file}: ${(e as Error).message}`,
+      range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
+    });
+    return f;
+  } finally {
+    tree?.delete();
+  }
+}

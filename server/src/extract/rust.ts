@@ -1,0 +1,524 @@
+// Rust syntax → boundary model facts: exported `extern "C"` functions, `extern` import blocks
+// (also the 2024 `unsafe extern` form), #[repr] structs/unions/enums, type aliases, consts and
+// layout assertions.
+
+import type { Node, Tree } from "../parse/parser.js";
+import { parseText } from "../parse/parser.js";
+import type { AbiType, Field, FileFacts, FnDecl, Param, SourceAssert, TypeDecl } from "../model/types.js";
+import type { ScalarKind } from "../model/targets.js";
+import { docAbove, emptyFacts, evalConst, rangeOf, walk } from "./common.js";
+import { rustExtractors } from "./hooks.js";
+
+const RUST_PRIMS: Record<string, ScalarKind> = {
+  i8: "i8", u8: "u8", i16: "i16", u16: "u16", i32: "i32", u32: "u32", i64: "i64", u64: "u64",
+  i128: "i128", u128: "u128", isize: "isize", usize: "usize", f32: "f32", f64: "f64", bool: "bool",
+};
+
+/** core::ffi / std::os::raw / std::ffi / libc names (common practice: these names always mean the C types). */
+const FFI_NAMES: Record<string, ScalarKind> = {
+  c_char: "char", c_schar: "schar", c_uchar: "uchar", c_short: "short", c_ushort: "ushort",
+  c_int: "int", c_uint: "uint", c_long: "long", c_ulong: "ulong", c_longlong: "llong",
+  c_ulonglong: "ullong", c_float: "float", c_double: "double", size_t: "size_t", c_size_t: "size_t",
+  ssize_t: "ssize_t", c_ssize_t: "ssize_t", ptrdiff_t: "ptrdiff_t", c_ptrdiff_t: "ptrdiff_t",
+  intptr_t: "intptr_t", uintptr_t: "uintptr_t", wchar_t: "wchar_t",
+  int8_t: "i8", uint8_t: "u8", int16_t: "i16", uint16_t: "u16", int32_t: "i32", uint32_t: "u32",
+  int64_t: "i64", uint64_t: "u64",
+};
+
+const NOT_FFI: Record<string, string> = {
+  String: "String is a Rust heap string (pointer, capacity, length); C sees no such layout",
+  Vec: "Vec<T> is three words with unspecified field order",
+  str: "&str is a fat pointer (address + length)",
+  Rc: "Rc<T> has no C representation",
+  Arc: "Arc<T> has no C representation (pass Arc::into_raw's pointer instead)",
+  RefCell: "RefCell<T> has no C representation",
+  Cell: "Cell<T> has no stable C representation",
+  HashMap: "HashMap has no C representation",
+  Result: "Result<T, E> has no C representation",
+  CString: "CString is an owning Rust type; pass CString::into_raw()/as_ptr() instead",
+  CStr: "&CStr is a fat pointer; pass as_ptr() instead",
+  OsString: "OsString has no C representation",
+  PathBuf: "PathBuf has no C representation",
+  Box: "Box<T> of an unsized type is a fat pointer",
+};
+
+export interface RustCtx {
+  file: string;
+  consts: Map<string, number>;
+}
+
+export function rustType(n: Node | null, ctx: RustCtx): AbiType {
+  if (!n) return { k: "void" };
+  switch (n.type) {
+    case "primitive_type": {
+      const s = RUST_PRIMS[n.text];
+      if (s) return { k: "scalar", s };
+      if (n.text === "char") return { k: "unsafe", text: "char", why: "Rust `char` is a Unicode scalar value (any u32 bit pattern that is not one is undefined behaviour); use u32 or c_char" };
+      if (n.text === "str") return { k: "unsafe", text: "str", why: NOT_FFI.str! };
+      return { k: "unknown", text: n.text };
+    }
+    case "unit_type":
+    case "never_type":
+      return { k: "void" };
+    case "pointer_type": {
+      const mut = n.children.some((c) => c.type === "mutable_specifier");
+      const inner = rustType(n.childForFieldName("type"), ctx);
+      return { k: "ptr", to: inner, mut, via: "raw", nullable: true };
+    }
+    case "reference_type": {
+      const mut = n.children.some((c) => c.type === "mutable_specifier");
+      const innerNode = n.childForFieldName("type");
+      if (innerNode?.type === "slice_type") return { k: "unsafe", text: n.text, why: "a slice reference is a fat pointer (address + length); pass a pointer and a length" };
+      if (innerNode?.type === "dynamic_type") return { k: "unsafe", text: n.text, why: "a trait-object reference is a fat pointer (data + vtable)" };
+      const inner = rustType(innerNode, ctx);
+      if (inner.k === "unsafe" && inner.text === "str") return { k: "unsafe", text: n.text, why: NOT_FFI.str! };
+      return { k: "ptr", to: inner, mut, via: "ref", nullable: false };
+    }
+    case "array_type": {
+      const el = rustType(n.childForFieldName("element"), ctx);
+      const lenNode = n.childForFieldName("length");
+      if (!lenNode) return { k: "unsafe", text: n.text, why: "a slice has no fixed size" };
+      return { k: "array", of: el, len: evalConst(lenNode, ctx.consts), lenText: lenNode.text };
+    }
+    case "function_type": {
+      const mods = n.namedChildren.find((c) => c.type === "function_modifiers");
+      const ext = mods?.namedChildren.find((c) => c.type === "extern_modifier");
+      const abi = ext ? (ext.namedChildren.find((c) => c.type === "string_literal")?.text.replace(/"/g, "") ?? "C") : "Rust";
+      const params: AbiType[] = [];
+      let variadic = false;
+      for (const p of n.childForFieldName("parameters")?.namedChildren ?? []) {
+        if (p.type === "variadic_parameter") { variadic = true; continue; }
+        if (p.type === "parameter") params.push(rustType(p.childForFieldName("type"), ctx));
+        else if (p.type !== "attribute_item" && p.type !== "line_comment" && p.type !== "block_comment") params.push(rustType(p, ctx));
+      }
+      const ret = rustType(n.childForFieldName("return_type"), ctx);
+      if (abi === "Rust") return { k: "unsafe", text: n.text, why: "a Rust-ABI function pointer; C calls it with the C calling convention" };
+      return { k: "fn", params, ret, variadic, abi, nullable: false };
+    }
+    case "generic_type": {
+      const base = n.childForFieldName("type")?.text ?? "";
+      const last = base.split("::").pop()!;
+      const args = n.childForFieldName("type_arguments")?.namedChildren.filter((c) => c.type !== "lifetime") ?? [];
+      const a0 = args[0] ?? null;
+      if (last === "Option" && a0) {
+        const inner = rustType(a0, ctx);
+        if (inner.k === "ptr" && inner.via !== "raw") return { ...inner, nullable: true };
+        if (inner.k === "fn") return { ...inner, nullable: true };
+        return { k: "unsafe", text: n.text, why: "Option<T> has a C layout only around a reference, Box, NonNull or function pointer" };
+      }
+      if (last === "NonNull" && a0) return { k: "ptr", to: rustType(a0, ctx), mut: true, via: "nonnull", nullable: false };
+      if (last === "Box" && a0) {
+        if (a0.type === "slice_type" || a0.type === "dynamic_type" || a0.text === "str") return { k: "unsafe", text: n.text, why: NOT_FFI.Box! };
+        return { k: "ptr", to: rustType(a0, ctx), mut: true, via: "box", nullable: false };
+      }
+      if ((last === "ManuallyDrop" || last === "MaybeUninit" || last === "UnsafeCell" || last === "Wrapping") && a0) return rustType(a0, ctx);
+      if (last === "PhantomData") return { k: "array", of: { k: "scalar", s: "u8" }, len: 0, lenText: "0" };
+      if (NOT_FFI[last]) return { k: "unsafe", text: n.text, why: NOT_FFI[last]! };
+      return { k: "unsafe", text: n.text, why: "a generic type instance; its layout depends on the type arguments and is not known to C" };
+    }
+    case "scoped_type_identifier":
+    case "type_identifier": {
+      const last = n.text.split("::").pop()!;
+      if (FFI_NAMES[last]) return { k: "scalar", s: FFI_NAMES[last]! };
+      if (last === "c_void") return { k: "void" };
+      if (NOT_FFI[last]) return { k: "unsafe", text: n.text, why: NOT_FFI[last]! };
+      return { k: "named", name: last };
+    }
+    case "tuple_type":
+      return { k: "unsafe", text: n.text, why: "tuples have no guaranteed layout (Rust Reference, type layout: tuple layout is unspecified)" };
+    case "dynamic_type":
+    case "abstract_type":
+    case "bounded_type":
+      return { k: "unsafe", text: n.text, why: "trait objects and impl Trait have no C representation" };
+    case "slice_type":
+      return { k: "unsafe", text: n.text, why: "a slice has no fixed size" };
+  }
+  return { k: "unknown", text: n.text };
+}
+
+interface AttrInfo {
+  texts: string[];
+  noMangle: boolean;
+  exportName?: string;
+  linkName?: string;
+  repr: string[];
+  derives: string[];
+  cfgTest: boolean;
+}
+
+function attrsBefore(n: Node): AttrInfo {
+  const info: AttrInfo = { texts: [], noMangle: false, repr: [], derives: [], cfgTest: false };
+  let p = n.previousNamedSibling;
+  while (p && (p.type === "attribute_item" || p.type === "line_comment" || p.type === "block_comment")) {
+    if (p.type === "attribute_item") {
+      const a = p.namedChildren.find((c) => c.type === "attribute");
+      if (a) readAttr(a, info);
+    }
+    p = p.previousNamedSibling;
+  }
+  return info;
+}
+
+function readAttr(a: Node, info: AttrInfo): void {
+  info.texts.push(a.text);
+  const head = a.namedChild(0);
+  const name = head?.text ?? "";
+  const args = a.childForFieldName("arguments");
+  const value = a.childForFieldName("value");
+  const strVal = value?.type === "string_literal" ? value.text.slice(1, -1) : undefined;
+  if (name === "no_mangle") info.noMangle = true;
+  else if (name === "unsafe" && args) {
+    // 2024 edition: #[unsafe(no_mangle)], #[unsafe(export_name = "…")]
+    const inner = args.namedChildren;
+    for (let i = 0; i < inner.length; i++) {
+      const t = inner[i]!.text;
+      if (t === "no_mangle") info.noMangle = true;
+      if (t === "export_name") {
+        const s = inner.slice(i + 1).find((c) => c.type === "string_literal");
+        if (s) info.exportName = s.text.slice(1, -1);
+      }
+    }
+  } else if (name === "export_name" && strVal) info.exportName = strVal;
+  else if (name === "link_name" && strVal) info.linkName = strVal;
+  else if (name === "repr" && args) {
+    for (const c of args.namedChildren) {
+      if (c.type === "identifier") info.repr.push(c.text);
+      else if (c.type === "token_tree" && info.repr.length) {
+        info.repr[info.repr.length - 1] += `(${c.text.slice(1, -1).trim()})`;
+      }
+    }
+  } else if (name === "derive" && args) {
+    for (const c of args.namedChildren) if (c.type === "identifier") info.derives.push(c.text);
+  } else if (name === "cfg" && args && /\btest\b/.test(args.text)) info.cfgTest = true;
+}
+
+function reprOf(list: string[]): TypeDecl["repr"] {
+  const r: TypeDecl["repr"] = {};
+  for (const x of list) {
+    const m = /^(\w+)(?:\((\d+)\))?$/.exec(x.replace(/\s+/g, ""));
+    if (!m) continue;
+    const [, k, v] = m;
+    if (k === "C") r.c = true;
+    else if (k === "transparent") r.transparent = true;
+    else if (k === "packed") r.packed = v ? Number(v) : 1;
+    else if (k === "align" && v) r.align = Number(v);
+    else if (k && RUST_PRIMS[k] && k !== "bool" && k !== "f32" && k !== "f64") r.int = RUST_PRIMS[k];
+  }
+  return r;
+}
+
+function abiOf(mods: Node | null | undefined): string | undefined {
+  const ext = mods?.namedChildren.find((c) => c.type === "extern_modifier");
+  if (!ext) return undefined;
+  const s = ext.namedChildren.find((c) => c.type === "string_literal");
+  return s ? s.text.replace(/"/g, "") : "C";
+}
+
+function readRustParams(list: Node | null, ctx: RustCtx): { params: Param[]; variadic: boolean; hasSelf: boolean } {
+  const params: Param[] = [];
+  let variadic = false;
+  let hasSelf = false;
+  for (const p of list?.namedChildren ?? []) {
+    if (p.type === "variadic_parameter") { variadic = true; continue; }
+    if (p.type === "self_parameter") { hasSelf = true; continue; }
+    if (p.type !== "parameter") continue;
+    const tn = p.childForFieldName("type");
+    const pat = p.childForFieldName("pattern");
+    params.push({
+      name: (pat?.text ?? "_").replace(/^mut\s+/, ""),
+      type: rustType(tn, ctx),
+      text: tn?.text ?? "",
+      range: rangeOf(ctx.file, p),
+      typeRange: rangeOf(ctx.file, tn ?? p),
+    });
+  }
+  return { params, variadic, hasSelf };
+}
+
+export function extractRust(file: string, tree: Tree): FileFacts {
+  const facts = emptyFacts(file, "rust");
+  const root = tree.rootNode;
+  facts.hasErrors = root.hasError;
+  const ctx: RustCtx = { file, consts: new Map() };
+
+  // Pass 1: integer consts (array lengths), anywhere at item level.
+  walk(root, (n) => {
+    if (n.type === "const_item" || n.type === "static_item") {
+      const name = n.childForFieldName("name")?.text;
+      const v = evalConst(n.childForFieldName("value"), ctx.consts);
+      if (name && name !== "_" && v !== null) ctx.consts.set(name, v);
+      return false;
+    }
+    if (n.type === "function_item") return false;
+    return;
+  });
+
+  const visitItems = (container: Node, inImpl: boolean) => {
+    const kids = container.namedChildren;
+    for (let i = 0; i < kids.length; i++) {
+      const n = kids[i]!;
+      switch (n.type) {
+        case "mod_item": {
+          const a = attrsBefore(n);
+          const body = n.childForFieldName("body");
+          if (body && !a.cfgTest) visitItems(body, false);
+          break;
+        }
+        case "impl_item": {
+          const body = n.childForFieldName("body");
+          if (body) visitItems(body, true);
+          break;
+        }
+        case "function_item":
+          readFn(n, inImpl);
+          break;
+        case "foreign_mod_item": {
+          const abi = abiOf(n) ?? "C";
+          const body = n.childForFieldName("body");
+          if (body) readForeign(body, abi);
+          break;
+        }
+        case "ERROR": {
+          // `unsafe extern "C" { … }` (Rust 2024) is not in this grammar version: the modifier
+          // lands in an ERROR node and the block follows as an expression statement.
+          const ext = n.namedChildren.find((c) => c.type === "extern_modifier");
+          const next = kids[i + 1];
+          const block = next?.type === "expression_statement" ? next.namedChild(0) : next?.type === "block" ? next : null;
+          if (ext && block?.type === "block") {
+            const s = ext.namedChildren.find((c) => c.type === "string_literal");
+            readForeign(block, s ? s.text.replace(/"/g, "") : "C");
+            i++;
+          } else {
+            visitItems(n, inImpl);
+          }
+          break;
+        }
+        case "struct_item":
+        case "union_item":
+        case "enum_item":
+          readAggregate(n);
+          break;
+        case "type_item": {
+          const name = n.childForFieldName("name");
+          if (name) {
+            const generic = !!n.childForFieldName("type_parameters");
+            facts.types.push({
+              id: `${file}#${name.text}#${n.startPosition.row}`, lang: "rust", kind: "alias", name: name.text,
+              fields: [], enumerators: [], aliasOf: rustType(n.childForFieldName("type"), ctx), repr: {},
+              range: rangeOf(file, n), nameRange: rangeOf(file, name), file, doc: docAbove(n), attrs: [], generic,
+            });
+          }
+          break;
+        }
+        case "const_item":
+          readConstAssert(n);
+          break;
+      }
+    }
+  };
+
+  const readFn = (n: Node, inImpl: boolean) => {
+    const a = attrsBefore(n);
+    if (a.cfgTest) return;
+    const nameNode = n.childForFieldName("name");
+    if (!nameNode) return;
+    const mods = n.namedChildren.find((c) => c.type === "function_modifiers");
+    const abi = abiOf(mods);
+    const exported = a.noMangle || !!a.exportName;
+    const body = n.childForFieldName("body");
+    const { params, variadic, hasSelf } = readRustParams(n.childForFieldName("parameters"), ctx);
+    const retNode = n.childForFieldName("return_type");
+    const fn: FnDecl = {
+      id: `${file}#${nameNode.text}#${n.startPosition.row}`,
+      lang: "rust",
+      role: "export",
+      name: nameNode.text,
+      symbol: a.exportName ?? nameNode.text,
+      abi: abi ?? "Rust",
+      params,
+      ret: rustType(retNode, ctx),
+      retText: retNode?.text ?? "()",
+      retRange: retNode ? rangeOf(file, retNode) : undefined,
+      variadic,
+      range: rangeOf(file, n),
+      nameRange: rangeOf(file, nameNode),
+      file,
+      noMangle: exported,
+      isExtern: abi !== undefined,
+      isPub: n.namedChildren.some((c) => c.type === "visibility_modifier"),
+      doc: docAbove(n),
+      attrs: a.texts,
+      generic: !!n.childForFieldName("type_parameters") || hasSelf || (inImpl && false),
+    };
+    if (body) {
+      fn.body = {};
+      for (const x of rustExtractors.fnBody) x(n, fn, facts);
+    }
+    // Only functions that take part in the C ABI are boundary items; others are kept (not
+    // exported) so body rules can follow helper calls inside the crate.
+    if (!exported && abi === undefined) (fn as FnDecl & { internal?: boolean }).internal = true;
+    facts.fns.push(fn);
+  };
+
+  const readForeign = (body: Node, abi: string) => {
+    for (const item of body.namedChildren) {
+      if (item.type !== "function_signature_item") continue;
+      const a = attrsBefore(item);
+      const nameNode = item.childForFieldName("name");
+      if (!nameNode) continue;
+      const { params, variadic } = readRustParams(item.childForFieldName("parameters"), ctx);
+      const retNode = item.childForFieldName("return_type");
+      facts.fns.push({
+        id: `${file}#${nameNode.text}#${item.startPosition.row}`,
+        lang: "rust",
+        role: "import",
+        name: nameNode.text,
+        symbol: a.linkName ?? nameNode.text,
+        abi,
+        params,
+        ret: rustType(retNode, ctx),
+        retText: retNode?.text ?? "()",
+        retRange: retNode ? rangeOf(file, retNode) : undefined,
+        variadic,
+        range: rangeOf(file, item),
+        nameRange: rangeOf(file, nameNode),
+        file,
+        isExtern: true,
+        doc: docAbove(item),
+        attrs: a.texts,
+      });
+    }
+  };
+
+  const readAggregate = (n: Node) => {
+    const a = attrsBefore(n);
+    if (a.cfgTest) return;
+    const nameNode = n.childForFieldName("name");
+    if (!nameNode) return;
+    const kind = n.type === "struct_item" ? "struct" : n.type === "union_item" ? "union" : "enum";
+    const body = n.childForFieldName("body");
+    const decl: TypeDecl = {
+      id: `${file}#${nameNode.text}#${n.startPosition.row}`,
+      lang: "rust",
+      kind,
+      name: nameNode.text,
+      fields: [],
+      enumerators: [],
+      repr: reprOf(a.repr),
+      range: rangeOf(file, n),
+      nameRange: rangeOf(file, nameNode),
+      file,
+      doc: docAbove(n),
+      attrs: a.texts,
+      generic: !!n.childForFieldName("type_parameters"),
+      derives: a.derives,
+    };
+    if (kind === "enum") {
+      let next = 0;
+      let dataCarrying = false;
+      for (const v of body?.namedChildren ?? []) {
+        if (v.type !== "enum_variant") continue;
+        const vn = v.childForFieldName("name")?.text ?? "";
+        if (v.childForFieldName("body")) dataCarrying = true;
+        const valNode = v.childForFieldName("value");
+        const val = valNode ? evalConst(valNode, ctx.consts) : next;
+        decl.enumerators.push({ name: vn, value: val, text: v.text, range: rangeOf(file, v) });
+        if (val !== null) next = val + 1;
+      }
+      if (dataCarrying) (decl as TypeDecl & { dataCarrying?: boolean }).dataCarrying = true;
+      if (decl.enumerators.length === 0) decl.opaqueMarker = true;
+    } else if (body) {
+      const fields: Field[] = [];
+      if (body.type === "field_declaration_list") {
+        for (const f of body.namedChildren) {
+          if (f.type !== "field_declaration") continue;
+          const fname = f.childForFieldName("name")?.text ?? "";
+          const ft = f.childForFieldName("type");
+          fields.push({ name: fname, type: rustType(ft, ctx), text: ft?.text ?? "", range: rangeOf(file, f) });
+        }
+      } else if (body.type === "ordered_field_declaration_list") {
+        let i = 0;
+        for (const f of body.namedChildren) {
+          if (f.type === "visibility_modifier" || f.type === "attribute_item" || f.type.endsWith("comment")) continue;
+          fields.push({ name: String(i++), type: rustType(f, ctx), text: f.text, range: rangeOf(file, f) });
+        }
+      }
+      decl.fields = fields;
+      // `pub struct Handle { _private: [u8; 0] }` and `struct Handle(c_void)`: opaque markers.
+      if (fields.length === 0 || fields.every((f) => (f.type.k === "array" && f.type.len === 0) || f.name.startsWith("_") && f.type.k === "array" && f.type.len === 0)) {
+        decl.opaqueMarker = true;
+      }
+    } else {
+      decl.opaqueMarker = true; // `struct Foo;`
+    }
+    facts.types.push(decl);
+  };
+
+  const readConstAssert = (n: Node) => {
+    // const _: () = assert!(size_of::<T>() == N);  (also core::mem::offset_of!(T, f) == N)
+    const value = n.childForFieldName("value");
+    if (!value) return;
+    walk(value, (m) => {
+      if (m.type !== "macro_invocation") return;
+      const mac = m.childForFieldName("macro")?.text ?? "";
+      if (!/(^|::)(assert|assert_eq|debug_assert)$/.test(mac)) return;
+      const tt = m.namedChildren.find((c) => c.type === "token_tree");
+      if (!tt) return false;
+      const a = readAssertTokens(tt.text.slice(1, -1), mac.endsWith("assert_eq"), n);
+      if (a) facts.asserts.push(a);
+      return false;
+    });
+  };
+
+  const readAssertTokens = (inner: string, isEq: boolean, whole: Node): SourceAssert | undefined => {
+    // Macro arguments are unparsed tokens in the tree; re-parse them as an expression with the
+    // Rust grammar itself.
+    const src = isEq ? `fn _f() { (${inner}); }` : `fn _f() { ${inner.split(/,(?![^(<]*[)>])/)[0]}; }`;
+    const t = parseText("rust", src);
+    try {
+      let found: SourceAssert | undefined;
+      walk(t.rootNode, (m) => {
+        if (found) return false;
+        if (isEq && m.type === "tuple_expression" && m.namedChildCount >= 2) {
+          found = assertFrom(m.namedChild(0)!, "==", m.namedChild(1)!, whole);
+          return false;
+        }
+        if (m.type === "binary_expression") {
+          const op = m.child(1)?.text ?? "";
+          found = assertFrom(m.childForFieldName("left")!, op, m.childForFieldName("right")!, whole);
+          return false;
+        }
+        return;
+      });
+      return found;
+    } finally {
+      t.delete();
+    }
+  };
+
+  const assertFrom = (l: Node, op: string, r: Node, whole: Node): SourceAssert | undefined => {
+    if (!["==", "!=", "<=", ">=", "<", ">"].includes(op)) return undefined;
+    const value = evalConst(r, ctx.consts);
+    if (value === null) return undefined;
+    const base = { lang: "rust" as const, op: op as SourceAssert["op"], value, range: rangeOf(file, whole), file, text: whole.text };
+    if (l.type === "call_expression") {
+      const f = l.childForFieldName("function");
+      const ft = f?.text ?? "";
+      const gm = /(?:^|::)(size_of|align_of)::<\s*([\w:]+)\s*>$/.exec(ft.replace(/\s+/g, ""));
+      if (gm) return { ...base, kind: gm[1] === "size_of" ? "sizeof" : "alignof", typeName: gm[2]!.split("::").pop()! };
+    }
+    if (l.type === "macro_invocation") {
+      const mac = l.childForFieldName("macro")?.text ?? "";
+      if (/(^|::)offset_of$/.test(mac)) {
+        const tt = l.namedChildren.find((c) => c.type === "token_tree");
+        const parts = tt?.namedChildren.filter((c) => c.type === "identifier" || c.type === "type_identifier") ?? [];
+        if (parts.length >= 2) return { ...base, kind: "offsetof", typeName: parts[parts.length - 2]!.text, field: parts[parts.length - 1]!.text };
+      }
+    }
+    return undefined;
+  };
+
+  visitItems(root, false);
+  for (const x of rustExtractors.file) x(root, facts);
+  return facts;
+}

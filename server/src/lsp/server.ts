@@ -1,0 +1,3 @@
+export function startServer(): void {
+  throw new Error("language server not built yet");
+}

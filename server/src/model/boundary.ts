@@ -1,0 +1,152 @@
+// The boundary model: every file's facts linked into one view of the seam. Built from FileFacts
+// only (no file reads), so it is cheap to rebuild after a one-file change.
+
+import * as path from "node:path";
+import type { AbiType, FileFacts, FnDecl, TypeDecl } from "./types.js";
+import { ALL_TRIPLES, type Triple } from "./targets.js";
+
+export type Side = "rust" | "c";
+
+export interface ModelConfig {
+  targets: Triple[];
+  /** Include directories, workspace-relative (or absolute). */
+  includePaths: string[];
+  /** Extra settings for rule families (port patterns etc.), by family name. */
+  families: Record<string, unknown>;
+}
+
+export const DEFAULT_CONFIG: ModelConfig = { targets: [...ALL_TRIPLES], includePaths: [], families: {} };
+
+export interface SymbolGroup {
+  symbol: string;
+  rust: FnDecl[]; // exports and imports
+  c: FnDecl[]; // prototypes and definitions (C and C++)
+}
+
+export class Model {
+  readonly files: Map<string, FileFacts>;
+  readonly config: ModelConfig;
+  readonly symbols = new Map<string, SymbolGroup>();
+  private readonly typesBy: Record<Side, Map<string, TypeDecl[]>> = { rust: new Map(), c: new Map() };
+  private readonly definesBy = new Map<string, AbiType>();
+  private readonly includers = new Map<string, string[]>();
+  private readonly fnIds = new Map<string, FnDecl>();
+
+  constructor(facts: Iterable<FileFacts>, config: ModelConfig = DEFAULT_CONFIG) {
+    this.files = new Map();
+    this.config = config;
+    for (const f of facts) this.files.set(f.file, f);
+    for (const f of this.files.values()) {
+      const side: Side = f.lang === "rust" ? "rust" : "c";
+      for (const fn of f.fns) {
+        this.fnIds.set(fn.id, fn);
+        if ((fn as FnDecl & { internal?: boolean }).internal) continue;
+        if (fn.lang === "rust" && fn.role === "export" && !fn.noMangle && !fn.isExtern) continue;
+        let g = this.symbols.get(fn.symbol);
+        if (!g) this.symbols.set(fn.symbol, (g = { symbol: fn.symbol, rust: [], c: [] }));
+        (side === "rust" ? g.rust : g.c).push(fn);
+      }
+      for (const t of f.types) {
+        const m = this.typesBy[side];
+        const arr = m.get(t.name) ?? [];
+        arr.push(t);
+        m.set(t.name, arr);
+        if (t.tag && t.tag !== t.name && t.kind !== "alias") {
+          const a2 = m.get(t.tag) ?? [];
+          a2.push(t);
+          m.set(t.tag, a2);
+        }
+      }
+      for (const d of f.defines) this.definesBy.set(d.name, d.type);
+      for (const inc of f.includes) {
+        if (inc.system) continue;
+        const r = this.resolveInclude(f.file, inc.path);
+        if (r) {
+          inc.resolved = r;
+          const arr = this.includers.get(r) ?? [];
+          arr.push(f.file);
+          this.includers.set(r, arr);
+        }
+      }
+    }
+  }
+
+  fnById(id: unknown): FnDecl | undefined {
+    return typeof id === "string" ? this.fnIds.get(id) : undefined;
+  }
+
+  get targets(): Triple[] {
+    return this.config.targets;
+  }
+
+  /** Every function of the workspace that is not a boundary item (helpers in Rust, C++ code). */
+  allFns(): FnDecl[] {
+    const out: FnDecl[] = [];
+    for (const f of this.files.values()) out.push(...f.fns);
+    return out;
+  }
+
+  /** Resolves `#include "x"` against the including file's folder, then the include paths. */
+  resolveInclude(from: string, inc: string): string | undefined {
+    const cands = [path.normalize(path.join(path.dirname(from), inc))];
+    for (const p of this.config.includePaths) cands.push(path.normalize(path.join(p, inc)));
+    for (const c of cands) if (this.files.has(c)) return c;
+    // Fall back to a unique file of that name anywhere in the workspace (common practice: build
+    // systems add the header folders with -I).
+    const base = path.basename(inc);
+    let hit: string | undefined;
+    for (const f of this.files.keys()) {
+      if (f === inc || f.endsWith("/" + inc) || (inc === base && path.basename(f) === base)) {
+        if (hit && hit !== f) return undefined;
+        hit = f;
+      }
+    }
+    return hit;
+  }
+
+  /** Files that include `file`, directly or through other headers. */
+  includersOf(file: string, seen = new Set<string>()): string[] {
+    const out: string[] = [];
+    for (const f of this.includers.get(file) ?? []) {
+      if (seen.has(f)) continue;
+      seen.add(f);
+      out.push(f, ...this.includersOf(f, seen));
+    }
+    return out;
+  }
+
+  typeDecls(name: string, side: Side): TypeDecl[] {
+    return this.typesBy[side].get(name) ?? [];
+  }
+
+  /** Follows aliases, typedefs and #define aliases until a non-alias type. */
+  resolve(t: AbiType, side: Side, depth = 0): AbiType {
+    if (depth > 32) return { k: "unknown", text: "alias cycle" };
+    if (t.k === "named") {
+      if (side === "c" && this.definesBy.has(t.name)) return this.resolve(this.definesBy.get(t.name)!, side, depth + 1);
+      const decls = this.typeDecls(t.name, side);
+      const alias = decls.find((d) => d.kind === "alias" && d.aliasOf);
+      const agg = decls.find((d) => d.kind !== "alias");
+      if (!agg && alias) {
+        const r = this.resolve(alias.aliasOf!, side, depth + 1);
+        // A C typedef of a function pointer is the function type itself for comparison purposes.
+        return r;
+      }
+      return t;
+    }
+    return t;
+  }
+
+  /** The struct/union/enum/opaque declaration a type names, after resolving aliases. */
+  aggregate(t: AbiType, side: Side): TypeDecl | undefined {
+    const r = this.resolve(t, side);
+    if (r.k !== "named") return undefined;
+    const decls = this.typeDecls(r.name, side).filter((d) => d.kind !== "alias");
+    return decls.find((d) => d.kind !== "opaque") ?? decls[0];
+  }
+}
+
+/** Normalises a type name for cross-language matching: `SonarFir`, `sonar_fir`, `struct sonar_fir`. */
+export function normName(n: string): string {
+  return n.replace(/^(struct|union|enum)\s+/, "").replace(/_t$/, "").replace(/_/g, "").toLowerCase();
+}

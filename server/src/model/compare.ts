@@ -1,0 +1,220 @@
+// Cross-language type agreement: does a Rust type and a C type mean the same bits on a target?
+// Returns the first difference per target; callers group targets with the same difference.
+
+import type { AbiType } from "./types.js";
+import { scalarInfo, type Triple, C_SPELLING, RUST_SPELLING } from "./targets.js";
+import { normName, type Model } from "./boundary.js";
+import { layoutOf } from "./layout.js";
+
+export type DiffKind =
+  | "kind" // integer vs float vs pointer vs aggregate
+  | "width" // integer/float size differs
+  | "sign" // signedness differs
+  | "depth" // pointer vs non-pointer, or a different number of pointer levels
+  | "item" // pointee item differs (size or kind)
+  | "const" // the pointee is writable on one side only
+  | "name" // different named aggregates of the same size
+  | "callback" // function-pointer types differ
+  | "nullable"; // C may pass NULL where Rust assumes non-null
+
+export interface TypeDiff {
+  kind: DiffKind;
+  /** Human description of this difference, without the target list. */
+  detail: string;
+  /** For "const": true when Rust may write where C promises not to. */
+  rustWrites?: boolean;
+}
+
+export interface GroupedDiff extends TypeDiff {
+  targets: Triple[];
+}
+
+export function describeRust(t: AbiType): string {
+  switch (t.k) {
+    case "void": return "()";
+    case "scalar": return RUST_SPELLING[t.s];
+    case "complex": return `complex ${t.of}`;
+    case "ptr": {
+      const inner = describeRust(t.to === undefined ? { k: "void" } : t.to.k === "void" ? { k: "unknown", text: "c_void" } : t.to);
+      if (t.via === "ref") return `&${t.mut ? "mut " : ""}${inner}`;
+      if (t.via === "box") return `Box<${inner}>`;
+      if (t.via === "nonnull") return `NonNull<${inner}>`;
+      return `*${t.mut ? "mut" : "const"} ${inner}`;
+    }
+    case "array": return `[${describeRust(t.of)}; ${t.len ?? t.lenText}]`;
+    case "named": return t.name;
+    case "fn": return `extern "${t.abi}" fn(${t.params.map(describeRust).join(", ")})${t.ret.k === "void" ? "" : " -> " + describeRust(t.ret)}`;
+    case "unsafe": return t.text;
+    case "unknown": return t.text;
+  }
+}
+
+export function describeC(t: AbiType): string {
+  switch (t.k) {
+    case "void": return "void";
+    case "scalar": return C_SPELLING[t.s];
+    case "complex": return `${t.of} _Complex`;
+    case "ptr": {
+      if (t.to.k === "fn") return describeC(t.to);
+      return `${t.mut ? "" : "const "}${describeC(t.to)} *`.replace(/\* \*/g, "**");
+    }
+    case "array": return `${describeC(t.of)}[${t.len ?? t.lenText ?? ""}]`;
+    case "named": return t.tag && t.tag !== "enum" ? `${t.tag} ${t.name}` : t.name;
+    case "fn": return `${describeC(t.ret)} (*)(${t.params.map(describeC).join(", ")})`;
+    case "unsafe": return t.text;
+    case "unknown": return t.text;
+  }
+}
+
+function sizeWord(n: number): string {
+  return `${n}-byte`;
+}
+
+/** Strips a C pointer-to-function down to the function type (C typedefs spell callbacks that way). */
+function fnOf(t: AbiType): (AbiType & { k: "fn" }) | undefined {
+  if (t.k === "fn") return t;
+  if (t.k === "ptr" && t.to.k === "fn") return t.to;
+  return undefined;
+}
+
+/**
+ * Compares one Rust type with one C type on one target. `top` is true for a parameter/return
+ * itself (so `const` on the outermost pointee is reported as a const difference).
+ */
+export function compareOn(model: Model, r0: AbiType, c0: AbiType, triple: Triple, level = 0): TypeDiff | null {
+  if (level > 16) return null;
+  const r = model.resolve(r0, "rust");
+  const c = model.resolve(c0, "c");
+  if (r.k === "unknown" || c.k === "unknown" || r.k === "unsafe" || c.k === "unsafe") return null;
+
+  const rf = fnOf(r);
+  const cf = fnOf(c);
+  if (rf || cf) {
+    if (!rf || !cf) return { kind: "depth", detail: `${describeRust(r)} in Rust but ${describeC(c)} in C` };
+    if (rf.params.length !== cf.params.length) return { kind: "callback", detail: `the callback takes ${rf.params.length} parameter(s) in Rust but ${cf.params.length} in C` };
+    for (let i = 0; i < rf.params.length; i++) {
+      const d = compareOn(model, rf.params[i]!, cf.params[i]!, triple, level + 1);
+      if (d && d.kind !== "const" && d.kind !== "sign") return { kind: "callback", detail: `callback parameter ${i + 1}: ${d.detail}` };
+    }
+    const dr = compareOn(model, rf.ret, cf.ret, triple, level + 1);
+    if (dr && dr.kind !== "sign") return { kind: "callback", detail: `callback return: ${dr.detail}` };
+    if (level === 0 && !rf.nullable && cf.nullable) {
+      return { kind: "nullable", detail: `C may pass NULL for this function pointer, but a Rust \`extern "C" fn\` must never be null; use Option<extern "C" fn(..)>` };
+    }
+    return null;
+  }
+
+  if (r.k === "void" || c.k === "void") {
+    if (r.k === c.k) return null;
+    return { kind: "kind", detail: `${describeRust(r)} in Rust but ${describeC(c)} in C` };
+  }
+
+  if (r.k === "ptr" || c.k === "ptr") {
+    if (r.k !== "ptr" || c.k !== "ptr") {
+      return { kind: "depth", detail: `${r.k === "ptr" ? "a pointer" : "not a pointer"} in Rust (\`${describeRust(r)}\`) but ${c.k === "ptr" ? "a pointer" : "not a pointer"} in C (\`${describeC(c)}\`)` };
+    }
+    const rt = model.resolve(r.to, "rust");
+    const ct = model.resolve(c.to, "c");
+    // void pointers accept any pointee (common practice for opaque handles and raw buffers)
+    if (rt.k !== "void" && ct.k !== "void") {
+      const inner = comparePointee(model, rt, ct, triple, level);
+      if (inner) return inner;
+    }
+    if (r.mut !== c.mut) {
+      return r.mut
+        ? { kind: "const", rustWrites: true, detail: `Rust takes \`${describeRust(r)}\` (may write) but C declares the pointee const (\`${describeC(c)}\`)` }
+        : { kind: "const", rustWrites: false, detail: `Rust takes \`${describeRust(r)}\` (read-only) but C passes a writable \`${describeC(c)}\`` };
+    }
+    return null;
+  }
+
+  if (r.k === "scalar" && c.k === "scalar") {
+    const a = scalarInfo(r.s, triple);
+    const b = scalarInfo(c.s, triple);
+    if (a.cls !== b.cls) {
+      if (a.cls === "bool" || b.cls === "bool") {
+        if (a.size !== b.size) return { kind: "width", detail: `\`${describeRust(r)}\` (${sizeWord(a.size)}) in Rust but \`${describeC(c)}\` (${sizeWord(b.size)}) in C` };
+        return { kind: "kind", detail: `\`${describeRust(r)}\` in Rust but \`${describeC(c)}\` in C (only 0 and 1 are valid Rust bool values)` };
+      }
+      return { kind: "kind", detail: `\`${describeRust(r)}\` (${a.cls === "float" ? "floating point" : "integer"}) in Rust but \`${describeC(c)}\` (${b.cls === "float" ? "floating point" : "integer"}) in C` };
+    }
+    if (a.size !== b.size) return { kind: "width", detail: `\`${describeRust(r)}\` is ${sizeWord(a.size)} but \`${describeC(c)}\` is ${sizeWord(b.size)}` };
+    if (a.cls === "int" && a.signed !== b.signed) {
+      return { kind: "sign", detail: `\`${describeRust(r)}\` is ${a.signed ? "signed" : "unsigned"} but \`${describeC(c)}\` is ${b.signed ? "signed" : "unsigned"}` };
+    }
+    return null;
+  }
+
+  if (r.k === "complex" || c.k === "complex") {
+    const lr = layoutOf(r, { model, side: "rust", triple });
+    const lc = layoutOf(c, { model, side: "c", triple });
+    if (lr.unknown || lc.unknown) return null;
+    if (lr.size !== lc.size || lr.align !== lc.align) {
+      return { kind: "width", detail: `\`${describeRust(r)}\` is ${lr.size} bytes (align ${lr.align}) but \`${describeC(c)}\` is ${lc.size} bytes (align ${lc.align})` };
+    }
+    return null;
+  }
+
+  if (r.k === "array" && c.k === "array") {
+    if (r.len !== null && c.len !== null && r.len !== c.len) return { kind: "width", detail: `array of ${r.len} in Rust but ${c.len} in C` };
+    return compareOn(model, r.of, c.of, triple, level + 1);
+  }
+
+  if (r.k === "named" || c.k === "named") {
+    return compareAggregates(model, r, c, triple);
+  }
+  if (r.k !== c.k) return { kind: "kind", detail: `\`${describeRust(r)}\` in Rust but \`${describeC(c)}\` in C` };
+  return null;
+}
+
+function comparePointee(model: Model, rt: AbiType, ct: AbiType, triple: Triple, level: number): TypeDiff | null {
+  const d = compareOn(model, rt, ct, triple, level + 1);
+  if (!d) return null;
+  if (d.kind === "const" || d.kind === "sign" || d.kind === "name" || d.kind === "nullable") return d.kind === "const" ? { ...d, detail: `at the inner pointer level: ${d.detail}` } : d;
+  const lr = layoutOf(rt, { model, side: "rust", triple });
+  const lc = layoutOf(ct, { model, side: "c", triple });
+  const sizes = !lr.unknown && !lc.unknown ? ` (${lr.size}-byte items vs ${lc.size}-byte items)` : "";
+  return { kind: d.kind === "depth" ? "depth" : "item", detail: `points to \`${describeRust(rt)}\` in Rust but \`${describeC(ct)}\` in C${sizes}` };
+}
+
+function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple): TypeDiff | null {
+  const rd = model.aggregate(r, "rust");
+  const cd = model.aggregate(c, "c");
+  // An opaque C handle matches any Rust type (C never looks inside); an enum matches an integer
+  // of its size (checked by the enum rules).
+  if (cd?.kind === "opaque" || rd?.opaqueMarker) return null;
+  const lr = layoutOf(r, { model, side: "rust", triple });
+  const lc = layoutOf(c, { model, side: "c", triple });
+  if (lr.unknown || lc.unknown) {
+    if (r.k === "named" && c.k === "named" && normName(r.name) !== normName(c.name) && rd && cd) {
+      return { kind: "name", detail: `\`${r.name}\` in Rust but \`${describeC(c)}\` in C` };
+    }
+    return null;
+  }
+  if (lr.size !== lc.size) {
+    return { kind: "width", detail: `\`${describeRust(r)}\` is ${lr.size} bytes but \`${describeC(c)}\` is ${lc.size} bytes` };
+  }
+  if (lr.align !== lc.align) {
+    return { kind: "width", detail: `\`${describeRust(r)}\` is aligned to ${lr.align} but \`${describeC(c)}\` to ${lc.align}` };
+  }
+  if ((r.k === "named") !== (c.k === "named") && !(rd?.kind === "enum" || cd?.kind === "enum")) {
+    return { kind: "kind", detail: `\`${describeRust(r)}\` in Rust but \`${describeC(c)}\` in C` };
+  }
+  if (r.k === "named" && c.k === "named" && normName(r.name) !== normName(c.name) && rd && cd && rd.kind !== "enum" && cd.kind !== "enum") {
+    return { kind: "name", detail: `\`${r.name}\` in Rust but \`${describeC(c)}\` in C (same size, different types)` };
+  }
+  return null;
+}
+
+/** Compares on every target and groups targets that share the same difference. */
+export function compareTypes(model: Model, r: AbiType, c: AbiType, triples: Triple[]): GroupedDiff[] {
+  const out: GroupedDiff[] = [];
+  for (const t of triples) {
+    const d = compareOn(model, r, c, t);
+    if (!d) continue;
+    const same = out.find((g) => g.kind === d.kind && g.detail === d.detail);
+    if (same) same.targets.push(t);
+    else out.push({ ...d, targets: [t] });
+  }
+  return out;
+}

@@ -1,0 +1,215 @@
+// The ABI type algebra and the language-neutral boundary model.
+// Everything here is plain data: extract builds it from syntax, rules read it.
+
+import type { ScalarKind } from "./targets.js";
+
+export type Lang = "rust" | "c" | "cpp";
+
+/** 0-based line/column range inside one file (tree-sitter rows/columns). */
+export interface Range {
+  file: string;
+  line: number;
+  col: number;
+  endLine: number;
+  endCol: number;
+}
+
+export type AbiType =
+  | { k: "void" }
+  | { k: "scalar"; s: ScalarKind }
+  | { k: "complex"; of: "float" | "double" }
+  /**
+   * A pointer. `mut` is whether the pointee may be written through it (C: no `const` on the
+   * pointee; Rust: `*mut`/`&mut`). `via` records how Rust spelled it: a raw pointer, a reference,
+   * a Box, NonNull or an Option around one of those (nullable).
+   */
+  | { k: "ptr"; to: AbiType; mut: boolean; via?: "raw" | "ref" | "box" | "nonnull"; nullable?: boolean }
+  | { k: "array"; of: AbiType; len: number | null; lenText?: string }
+  /** A reference to a named struct/union/enum/typedef/alias, resolved through the model. */
+  | { k: "named"; name: string; tag?: "struct" | "union" | "enum" }
+  | { k: "fn"; params: AbiType[]; ret: AbiType; variadic: boolean; abi: string; nullable: boolean }
+  /** A Rust type that has no C equivalent (Vec, String, &str, slices, tuples, generics, …). */
+  | { k: "unsafe"; text: string; why: string }
+  | { k: "unknown"; text: string };
+
+export interface Param {
+  name: string;
+  type: AbiType;
+  text: string; // the type as written
+  range: Range; // the whole parameter
+  typeRange: Range;
+}
+
+export interface FnDecl {
+  id: string; // unique within the model: file#name#line
+  lang: Lang;
+  /** export: Rust fn with a body; import: Rust extern block item; proto: C/C++ declaration; def: C/C++ definition. */
+  role: "export" | "import" | "proto" | "def";
+  name: string;
+  /** The symbol the linker sees (export_name / link_name / the plain name). */
+  symbol: string;
+  abi: string; // "C", "C-unwind", "system", "" for C prototypes (C linkage)
+  params: Param[];
+  ret: AbiType;
+  retText: string;
+  retRange?: Range;
+  variadic: boolean;
+  range: Range; // whole item
+  nameRange: Range;
+  file: string;
+  /** Rust: has #[no_mangle] / #[unsafe(no_mangle)] / #[export_name]. */
+  noMangle?: boolean;
+  /** Rust: declared `extern "…"`. */
+  isExtern?: boolean;
+  /** Rust: `pub` visibility. */
+  isPub?: boolean;
+  /** C/C++: the declaration has C linkage as seen by a C++ compiler (extern "C" block/decl). */
+  cLinkage?: boolean;
+  /** C/C++: the file is a header (.h/.hpp). */
+  inHeader?: boolean;
+  /** Doc comment text directly above the item (without comment markers). */
+  doc: string;
+  /** Raw attribute texts (Rust) or GCC __attribute__ texts (C). */
+  attrs: string[];
+  /** Generic parameters present (Rust). */
+  generic?: boolean;
+  /** Optional per-language facts extracted from the body, for body rules. */
+  body?: BodyFacts;
+}
+
+/** Facts taken from a function body by the extract layer; rule families add what they need. */
+export interface BodyFacts {
+  [family: string]: unknown;
+}
+
+export interface Field {
+  name: string;
+  type: AbiType;
+  text: string;
+  range: Range;
+  /** C bit-field width, when present. */
+  bits?: number;
+}
+
+export interface Repr {
+  c?: boolean;
+  transparent?: boolean;
+  packed?: number; // 1 for plain packed
+  align?: number;
+  int?: ScalarKind; // #[repr(u8)] etc.; C: underlying type of an enum (C23/C++11)
+}
+
+export interface TypeDecl {
+  id: string;
+  lang: Lang;
+  kind: "struct" | "union" | "enum" | "alias" | "opaque";
+  name: string;
+  /** For C: the struct tag when the typedef name differs (typedef struct tag name). */
+  tag?: string;
+  fields: Field[];
+  enumerators: { name: string; value: number | null; text: string; range: Range }[];
+  aliasOf?: AbiType;
+  repr: Repr;
+  range: Range;
+  nameRange: Range;
+  file: string;
+  doc: string;
+  attrs: string[];
+  generic?: boolean;
+  /** Rust: has a #[derive(...)] that includes these names. */
+  derives?: string[];
+  /** C: a pragma-pack value in force where it was declared. */
+  pragmaPack?: number;
+  /** True for a Rust `struct Foo { _private: [u8; 0] }`-style or `enum Foo {}` opaque marker. */
+  opaqueMarker?: boolean;
+}
+
+/** A size/offset assertion written in the source (checked per target by the layout rules). */
+export interface SourceAssert {
+  lang: Lang;
+  kind: "sizeof" | "alignof" | "offsetof";
+  typeName: string;
+  field?: string;
+  op: "==" | "!=" | "<=" | ">=" | "<" | ">";
+  value: number;
+  range: Range;
+  file: string;
+  text: string;
+}
+
+export interface IncludeRef {
+  path: string; // as written
+  system: boolean;
+  resolved?: string; // workspace-relative file, when found
+  range: Range;
+}
+
+export interface Diagnostic0 {
+  // A finding made by extract itself (e.g. file skipped)
+  rule: string;
+  severity: Severity;
+  message: string;
+  range: Range;
+}
+
+export type Severity = "error" | "warning" | "info" | "hint";
+
+/** What one file contributes to the boundary model. Pure function of (path, text). */
+export interface FileFacts {
+  file: string;
+  lang: Lang;
+  fns: FnDecl[];
+  types: TypeDecl[];
+  asserts: SourceAssert[];
+  includes: IncludeRef[];
+  /** C/C++: function calls found in bodies (filled by call-site extractors). */
+  calls: CallSite[];
+  /** C++ classes (filled by ownership extractors). */
+  classes: unknown[];
+  /** Object-like #define NAME <type> aliases (C). */
+  defines: { name: string; type: AbiType; range: Range }[];
+  /** Extract-level notices (skipped file, parse trouble). */
+  notices: Diagnostic0[];
+  /** Whether the tree had syntax errors. */
+  hasErrors: boolean;
+  /** C/C++ header: content is wrapped for C++ (extern "C" under #ifdef __cplusplus or plain). */
+  cppGuarded?: boolean;
+  /** Free-form per-family facts (e.g. ports, suppressions). */
+  extra: Record<string, unknown>;
+}
+
+/** An expression at a call site, in a small language-neutral form. */
+export type Expr =
+  | { k: "ident"; name: string }
+  | { k: "num"; value: number; text: string }
+  | { k: "bin"; op: string; l: Expr; r: Expr }
+  | { k: "un"; op: string; e: Expr }
+  | { k: "call"; callee: string; args: Expr[]; recv?: Expr }
+  | { k: "cast"; e: Expr; to: AbiType; toText: string; style: string }
+  | { k: "sizeof"; type?: AbiType; typeText?: string; expr?: Expr }
+  | { k: "field"; e: Expr; name: string }
+  | { k: "index"; e: Expr; idx: Expr }
+  | { k: "other"; text: string };
+
+export interface CallSite {
+  callee: string;
+  args: { expr: Expr; text: string; range: Range; type?: AbiType }[];
+  range: Range;
+  calleeRange: Range;
+  file: string;
+  /** Enclosing function (or method) name. */
+  inFn?: string;
+}
+
+export function rangeKey(r: Range): string {
+  return `${r.file}:${r.line}:${r.col}`;
+}
+
+/** An inline `ferrule-allow(rule): reason` comment (see analysis/suppress.ts). */
+export interface Suppression {
+  line: number;
+  endLine: number;
+  rules: string[];
+  reason: string;
+  range: Range;
+}

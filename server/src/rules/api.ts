@@ -1,0 +1,48 @@
+// What a rule family is and what it returns. Rules are pure functions: Model → Finding[].
+// They never read files, print, or speak the protocol.
+
+import type { Model } from "../model/boundary.js";
+import type { Range, Severity } from "../model/types.js";
+import { shortTriple, type Triple } from "../model/targets.js";
+
+export interface Related {
+  range: Range;
+  message: string;
+}
+
+export interface Finding {
+  rule: string;
+  severity: Severity;
+  message: string;
+  range: Range;
+  related: Related[];
+  /** Structured data the fixes layer turns into edits (rule-specific). */
+  data?: Record<string, unknown>;
+  /** Targets this finding applies to, when it does not apply to all configured targets. */
+  targets?: Triple[];
+}
+
+export interface RuleMeta {
+  id: string;
+  severity: Severity;
+  /** One line: what the rule reports. */
+  summary: string;
+  /** Why it matters, for SARIF help text and the README. */
+  why: string;
+}
+
+export interface RuleFamily {
+  name: string;
+  rules: RuleMeta[];
+  check(model: Model): Finding[];
+}
+
+/** "" when a difference holds on every checked target, else " (on armv7, i686 only)". */
+export function targetPhrase(targets: Triple[], all: Triple[]): string {
+  if (targets.length === all.length) return "";
+  return ` (on ${targets.map(shortTriple).join(", ")} only)`;
+}
+
+export function finding(meta: RuleMeta, range: Range, message: string, related: Related[] = [], extra: Partial<Finding> = {}): Finding {
+  return { rule: meta.id, severity: meta.severity, message, range, related, ...extra };
+}

@@ -1,0 +1,66 @@
+// The rule registry and the runner. A family that throws becomes one internal finding; the
+// other families' results stand.
+
+import type { Model } from "../model/boundary.js";
+import type { Finding, RuleFamily, RuleMeta } from "./api.js";
+import { symbolsFamily } from "./symbols.js";
+import { signaturesFamily } from "./signatures.js";
+import { ffiSafetyFamily } from "./ffi-safety.js";
+import { linkageFamily } from "./linkage.js";
+import { layoutFamily } from "./layout.js";
+import { buffersFamily } from "./buffers.js";
+import { ownershipFamily } from "./ownership.js";
+import "../extract/plugins/index.js";
+
+export const INTERNAL: RuleMeta = {
+  id: "internal-error",
+  severity: "warning",
+  summary: "ferrule itself failed while checking (a rule threw, or a file could not be read).",
+  why: "The rest of the results stand; please report the message.",
+};
+export const FILE_SKIPPED: RuleMeta = {
+  id: "file-skipped",
+  severity: "info",
+  summary: "A file was not analysed (too large, unreadable, or outside the workspace).",
+  why: "Findings that involve it are missing from this run.",
+};
+
+export const FAMILIES: RuleFamily[] = [
+  symbolsFamily, signaturesFamily, ffiSafetyFamily, linkageFamily, layoutFamily, buffersFamily, ownershipFamily,
+];
+
+/** Lets later rule families register themselves without editing this list by hand. */
+export function registerFamily(f: RuleFamily): void {
+  if (!FAMILIES.some((x) => x.name === f.name)) FAMILIES.push(f);
+}
+
+export function allRules(): RuleMeta[] {
+  return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED];
+}
+
+export function runFamily(f: RuleFamily, model: Model): Finding[] {
+  try {
+    return f.check(model);
+  } catch (e) {
+    const err = e as Error;
+    const anyFile = model.files.keys().next().value ?? "";
+    return [{
+      rule: INTERNAL.id,
+      severity: "warning",
+      message: `rule family \`${f.name}\` failed: ${err.message} — its findings are missing from this run; the other families' results stand`,
+      range: { file: anyFile, line: 0, col: 0, endLine: 0, endCol: 0 },
+      related: [],
+    }];
+  }
+}
+
+export function runRules(model: Model, families: RuleFamily[] = FAMILIES): Finding[] {
+  const out: Finding[] = [];
+  for (const f of model.files.values()) {
+    for (const n of f.notices) out.push({ rule: n.rule, severity: n.severity, message: n.message, range: n.range, related: [] });
+  }
+  for (const fam of families) out.push(...runFamily(fam, model));
+  return out;
+}
+
+export type { Finding, RuleFamily, RuleMeta };

@@ -1,0 +1,44 @@
+// Rule family "linkage": a C++ translation unit must see seam functions with C linkage.
+
+import type { Model } from "../model/boundary.js";
+import { finding, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
+
+export const CXX_LINKAGE: RuleMeta = {
+  id: "cxx-needs-c-linkage",
+  severity: "error",
+  summary: "A C++ file sees a seam function without extern \"C\" (directly, or through a header it includes that has no extern \"C\" guard).",
+  why: "A C++ compiler mangles the name (e.g. with parameter types encoded), so the call links against a symbol Rust never exported.",
+};
+
+export const linkageFamily: RuleFamily = {
+  name: "linkage",
+  rules: [CXX_LINKAGE],
+  check(model: Model): Finding[] {
+    const out: Finding[] = [];
+    for (const g of model.symbols.values()) {
+      const rustProvides = g.rust.some((f) => f.role === "export" && f.noMangle) || g.c.some((f) => f.role === "def" && f.lang === "c");
+      const rustCalls = g.rust.some((f) => f.role === "import");
+      if (!rustProvides && !rustCalls) continue;
+      for (const p of g.c) {
+        if (p.cLinkage) continue;
+        const facts = model.files.get(p.file);
+        if (!facts) continue;
+        if (facts.lang === "cpp" && !p.inHeader) {
+          if (p.role === "def" && !rustCalls) continue; // a C++ function of the same name that nobody imports
+          out.push(finding(CXX_LINKAGE, p.nameRange, `\`${p.name}\` is declared in a C++ file without extern "C": C++ looks for a mangled name and the link fails`, [], { data: { fn: p.id } }));
+          continue;
+        }
+        if (p.inHeader) {
+          const cxx = model.includersOf(p.file).filter((f) => model.files.get(f)?.lang === "cpp");
+          if (cxx.length === 0 && facts.lang !== "cpp") continue;
+          const inc = cxx[0];
+          const rel = inc ? [{ range: { file: inc, line: 0, col: 0, endLine: 0, endCol: 0 }, message: "included by this C++ file" }] : [];
+          const incRef = inc ? model.files.get(inc)?.includes.find((i) => i.resolved === p.file) : undefined;
+          if (incRef) rel[0]!.range = incRef.range;
+          out.push(finding(CXX_LINKAGE, p.nameRange, `\`${p.name}\` has no extern "C" linkage in this header${inc ? `, which ${inc} includes` : ""}: wrap the declarations in \`#ifdef __cplusplus extern "C" { #endif\``, rel, { data: { fn: p.id, header: p.file } }));
+        }
+      }
+    }
+    return out;
+  },
+};

@@ -1,0 +1,113 @@
+// Rule family "signatures": a Rust function and the C/C++ declaration of the same symbol must
+// agree on arity, each parameter's type (width, signedness, float/int, pointer depth, pointee
+// item, const-ness per pointer level), the return type, callbacks and variadics, on every target.
+
+import type { Model } from "../model/boundary.js";
+import type { AbiType, FnDecl } from "../model/types.js";
+import { compareTypes, describeC, describeRust, type GroupedDiff } from "../model/compare.js";
+import { finding, targetPhrase, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
+
+export const ARITY: RuleMeta = {
+  id: "arity-mismatch",
+  severity: "error",
+  summary: "The Rust function and its C declaration take a different number of parameters, or only one is variadic.",
+  why: "The callee reads parameters the caller never passed (garbage registers or stack) or ignores ones it did.",
+};
+export const PARAM_TYPE: RuleMeta = {
+  id: "param-type-mismatch",
+  severity: "error",
+  summary: "A parameter has a different size, kind (integer/float/pointer), pointer depth or pointee item type on the two sides.",
+  why: "The bits are reinterpreted: a float read as an int, a 4-byte length read as 8 bytes, samples of 8 bytes walked in steps of 4.",
+};
+export const PARAM_SIGN: RuleMeta = {
+  id: "param-signedness",
+  severity: "warning",
+  summary: "A parameter or return is signed on one side and unsigned on the other (including plain char, whose signedness differs between targets).",
+  why: "Values past the sign bit change meaning: a negative offset becomes a huge length.",
+};
+export const CONSTNESS: RuleMeta = {
+  id: "pointer-constness",
+  severity: "error",
+  summary: "A pointer is const on one side and writable on the other.",
+  why: "Rust writing through a pointer the header declares const mutates data the C++ caller believes is unchanged (and may live in read-only memory).",
+};
+export const RETURN_TYPE: RuleMeta = {
+  id: "return-type-mismatch",
+  severity: "error",
+  summary: "The return type differs between the Rust function and its C declaration.",
+  why: "The caller reads the return register (or hidden return pointer) as the wrong type.",
+};
+export const CALLBACK: RuleMeta = {
+  id: "callback-mismatch",
+  severity: "error",
+  summary: "A function-pointer parameter or field has a different signature or nullability on the two sides.",
+  why: "A callback called with the wrong signature corrupts its arguments; a NULL passed where Rust assumes a non-null fn pointer is undefined behaviour.",
+};
+
+function paramLabel(i: number, name: string): string {
+  return `parameter ${i + 1}${name && name !== "_" ? ` \`${name}\`` : ""}`;
+}
+
+function report(out: Finding[], model: Model, diffs: GroupedDiff[], what: string, rust: FnDecl, c: FnDecl, rRange: FnDecl["range"], cRange: FnDecl["range"], data: Record<string, unknown>, isReturn: boolean) {
+  for (const d of diffs) {
+    const where = targetPhrase(d.targets, model.targets);
+    let meta: RuleMeta;
+    let severity = undefined as Finding["severity"] | undefined;
+    switch (d.kind) {
+      case "sign": meta = PARAM_SIGN; break;
+      case "const": meta = CONSTNESS; if (!d.rustWrites) severity = "warning"; break;
+      case "callback": meta = CALLBACK; break;
+      case "nullable": meta = CALLBACK; severity = "warning"; break;
+      case "name": meta = PARAM_TYPE; severity = "warning"; break;
+      default: meta = isReturn ? RETURN_TYPE : PARAM_TYPE;
+    }
+    const msg = `\`${c.name}\` ${what}: ${d.detail}${where}`;
+    const f = finding(meta, cRange, msg, [{ range: rRange, message: `Rust side of \`${rust.name}\`` }], {
+      data: { ...data, rust: rust.id, c: c.id, diff: d.kind },
+      targets: d.targets.length === model.targets.length ? undefined : d.targets,
+    });
+    if (severity) f.severity = severity;
+    out.push(f);
+  }
+}
+
+export function compareSignatures(model: Model, rust: FnDecl, c: FnDecl): Finding[] {
+  const out: Finding[] = [];
+  const targets = model.targets;
+  if (rust.params.length !== c.params.length || rust.variadic !== c.variadic) {
+    const rv = rust.variadic ? " and is variadic" : "";
+    const cv = c.variadic ? " and is variadic" : "";
+    out.push(finding(ARITY, c.nameRange, `\`${c.name}\` takes ${c.params.length} parameter(s)${cv} in C but ${rust.params.length}${rv} in Rust`, [{ range: rust.nameRange, message: `Rust side of \`${rust.name}\`` }], { data: { rust: rust.id, c: c.id } }));
+  }
+  const n = Math.min(rust.params.length, c.params.length);
+  for (let i = 0; i < n; i++) {
+    const rp = rust.params[i]!;
+    const cp = c.params[i]!;
+    const diffs = compareTypes(model, rp.type, cp.type, targets);
+    report(out, model, diffs, paramLabel(i, cp.name || rp.name), rust, c, rp.range, cp.range, { param: i }, false);
+  }
+  report(out, model, compareTypes(model, rust.ret, c.ret, targets), "return type", rust, c, rust.retRange ?? rust.nameRange, c.retRange ?? c.nameRange, { ret: true }, true);
+  return out;
+}
+
+export const signaturesFamily: RuleFamily = {
+  name: "signatures",
+  rules: [ARITY, PARAM_TYPE, PARAM_SIGN, CONSTNESS, RETURN_TYPE, CALLBACK],
+  check(model: Model): Finding[] {
+    const out: Finding[] = [];
+    for (const g of model.symbols.values()) {
+      if (!g.rust.length || !g.c.length) continue;
+      // Prefer header prototypes (what C++ callers see); fall back to definitions.
+      const cSide = g.c.filter((f) => f.role === "proto" && f.inHeader);
+      const cands = cSide.length ? cSide : g.c;
+      for (const r of g.rust) {
+        if (r.role === "export" && !(r.isExtern && r.abi !== "Rust")) continue; // reported by symbols
+        for (const c of cands) out.push(...compareSignatures(model, r, c));
+      }
+    }
+    return out;
+  },
+};
+
+export type { AbiType };
+export { describeC, describeRust };
