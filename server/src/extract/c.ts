@@ -4,7 +4,7 @@
 import type { Node, Tree } from "../parse/parser.js";
 import type { AbiType, Field, FileFacts, FnDecl, Lang, SourceAssert, TypeDecl } from "../model/types.js";
 import { docAbove, emptyFacts, evalConst, rangeOf, trailingComment, walk } from "./common.js";
-import { applyDeclarator, cScalar, typeFromSpecifier, type DeclCtx } from "./ctypes.js";
+import { applyDeclarator, complexBase, cScalar, typeFromSpecifier, type DeclCtx } from "./ctypes.js";
 import { cFileExtractors } from "./hooks.js";
 
 const HEADER_RE = /\.(h|hpp|hh|hxx)$/i;
@@ -26,7 +26,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
     const tag = tagNode?.text;
     const name = typedefName ?? tag ?? `<anonymous ${kind} ${++anonCount}>`;
     const attrs = [...attrsExtra];
-    for (const c of spec.namedChildren) if (c.type === "attribute_specifier" || c.type === "alignas_qualifier") attrs.push(c.text);
+    for (const c of spec.namedChildren) if (c.type === "attribute_specifier" || c.type === "alignas_qualifier" || c.type === "alignas_specifier") attrs.push(c.text);
     if (spec.parent?.type === "declaration" || spec.parent?.type === "type_definition") {
       for (const c of spec.parent.namedChildren) if (c.type === "attribute_specifier") attrs.push(c.text);
     }
@@ -59,7 +59,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
           next = v + 1;
         }
       }
-      const under = spec.childForFieldName("underlying_type") ?? spec.namedChildren.find((c) => c.type === "primitive_type" || c.type === "sized_type_specifier" || c.type === "type_identifier" && c !== tagNode);
+      const under = spec.childForFieldName("underlying_type") ?? spec.childForFieldName("base") ?? spec.namedChildren.find((c) => c.type === "primitive_type" || c.type === "sized_type_specifier" || c.type === "type_identifier" && c !== tagNode);
       if (under) {
         const s = cScalar(under.text);
         if (s) decl.repr.int = s;
@@ -69,11 +69,28 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
         if (f.type !== "field_declaration") continue;
         const spec2 = f.childForFieldName("type");
         const innerCtx: DeclCtx = { ...ctx, onInlineAggregate: (s) => addAggregate(s) };
-        const base = typeFromSpecifier(spec2, innerCtx);
+        const cx = complexBase(f, typeFromSpecifier(spec2, innerCtx));
+        const base = cx.base;
         let bits: number | undefined;
         const bf = f.namedChildren.find((c) => c.type === "bitfield_clause");
         if (bf) bits = evalConst(bf.namedChild(0), ctx.consts) ?? undefined;
-        const fattrs = f.namedChildren.filter((c) => c.type === "attribute_specifier" || c.type === "alignas_qualifier").map((c) => c.text);
+        const fattrs = f.namedChildren.filter((c) => c.type === "attribute_specifier" || c.type === "alignas_qualifier" || c.type === "alignas_specifier").map((c) => c.text);
+        const quirk = cFieldQuirk(f);
+        if (quirk) {
+          // `float _Complex z;` / `_Alignas(8) char d;`: spellings this C grammar version does not
+          // know, read back from the tokens it produced (see cFieldQuirk).
+          const fld: Field & { attrs?: string[] } = { name: quirk.name, type: quirk.type ?? base, text: f.text, range: rangeOf(file, f) };
+          if (quirk.align) fld.attrs = [...fattrs, `_Alignas(${quirk.align})`];
+          else if (fattrs.length) fld.attrs = fattrs;
+          if (quirk.declarator) {
+            const r = applyDeclarator(quirk.declarator, fld.type, hasConstChild(f), innerCtx);
+            fld.name = r.name;
+            fld.type = r.type;
+          }
+          if (bits !== undefined) fld.bits = bits;
+          decl.fields.push(fld);
+          continue;
+        }
         const declarators = f.childrenForFieldName("declarator");
         if (declarators.length === 0) {
           // anonymous member struct/union, or an unnamed bit-field
@@ -84,6 +101,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
         }
         for (const d of declarators) {
           const r = applyDeclarator(d, base, hasConstChild(f), innerCtx);
+          if (cx.nameFromError !== undefined) r.name = cx.nameFromError;
           const fld: Field & { attrs?: string[] } = { name: r.name, type: r.type, text: f.text, range: rangeOf(file, f) };
           if (bits !== undefined) fld.bits = bits;
           if (fattrs.length) fld.attrs = fattrs;
@@ -98,7 +116,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
   const ctxWithInline: DeclCtx = { ...ctx, onInlineAggregate: (s) => addAggregate(s) };
 
   const handleFunction = (node: Node, spec: Node | null, declarator: Node, isDef: boolean, cLinkage: boolean) => {
-    const base = typeFromSpecifier(spec, ctxWithInline);
+    const base = complexBase(node, typeFromSpecifier(spec, ctxWithInline)).base;
     const d = applyDeclarator(declarator, base, hasConstChild(node), ctxWithInline);
     if (!d.fn || d.type.k !== "fn" || !d.name) return;
     const nameNode = d.nameNode!;
@@ -257,6 +275,37 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
   return facts;
 }
 
+/**
+ * Field spellings the bundled C grammar (tree-sitter-wasms 0.1.13) does not parse, recovered from
+ * the tree it does produce (node types and token texts, no text parsing):
+ *  - `_Complex double z;`: the grammar takes `_Complex` as a type name, `double` as the field name
+ *    and puts the real name in an ERROR node (`double _Complex z` is handled by complexBase).
+ *  - `_Alignas(8) char d;` / `alignas(8) char d;` (<stdalign.h>): a macro_type_specifier named
+ *    `_Alignas` holding the number in an ERROR node and the real type in a type_descriptor.
+ */
+function cFieldQuirk(f: Node): { name: string; type?: AbiType; align?: number; declarator?: Node } | undefined {
+  const spec = f.childForFieldName("type");
+  if (!spec) return undefined;
+  if (spec.type === "macro_type_specifier") {
+    const mname = spec.childForFieldName("name")?.text;
+    if (mname !== "_Alignas" && mname !== "alignas") return undefined;
+    const num = spec.namedChildren.find((c) => c.type === "ERROR")?.namedChildren.find((c) => c.type === "number_literal");
+    const td = spec.childForFieldName("type") ?? spec.namedChildren.find((c) => c.type === "type_descriptor");
+    const inner = td?.childForFieldName("type");
+    const decl = f.childForFieldName("declarator");
+    if (!num || !inner || !decl) return undefined;
+    const align = evalConst(num);
+    return { name: "", type: typeFromSpecifier(inner, { file: "", consts: new Map() }), align: align ?? undefined, declarator: decl };
+  }
+  const decl = f.childForFieldName("declarator");
+  const err = f.namedChildren.find((c) => c.type === "ERROR");
+  const realName = err?.namedChildren.length === 1 && err.namedChild(0)!.type === "identifier" ? err.namedChild(0)!.text : undefined;
+  if (!decl || decl.type !== "field_identifier" || !realName) return undefined;
+  if (spec.type !== "type_identifier" || (spec.text !== "_Complex" && spec.text !== "__complex__")) return undefined;
+  if (decl.text !== "float" && decl.text !== "double") return undefined;
+  return { name: realName, type: { k: "complex", of: decl.text } };
+}
+
 function aliasDecl(file: string, lang: Lang, name: string, aliasOf: AbiType, whole: Node, nameNode: Node, attrs: string[]): TypeDecl {
   return {
     id: `${file}#${name}#${whole.startPosition.row}`,
@@ -327,6 +376,13 @@ function readAssert(file: string, lang: Lang, cond: Node, whole: Node): SourceAs
     const tn = typeNameOf(td);
     if (!tn) return undefined;
     return { ...base, kind: l.type === "sizeof_expression" ? "sizeof" : "alignof", typeName: tn };
+  }
+  if (l.type === "offsetof_expression") {
+    // tree-sitter-c/cpp parse offsetof(T, f) as its own node (fields `type` and `member`).
+    const tn = typeNameOf(l.childForFieldName("type"));
+    const member = l.childForFieldName("member")?.text;
+    if (!tn || !member) return undefined;
+    return { ...base, kind: "offsetof", typeName: tn, field: member };
   }
   if (l.type === "call_expression") {
     const f = l.childForFieldName("function")?.text;

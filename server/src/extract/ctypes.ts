@@ -197,6 +197,27 @@ function firstNamedDeclarator(n: Node): Node | null {
   return null;
 }
 
+const COMPLEX_WORDS = new Set(["_Complex", "complex", "__complex__"]);
+
+/**
+ * `float _Complex x` is not in the C grammar version we use: the keyword lands in an ERROR node
+ * after the type (or, for `<complex.h>`'s `complex` macro, becomes the declarator name with the
+ * real name in a trailing ERROR). Reads both shapes from the tree.
+ */
+export function complexBase(decl: Node, base: AbiType): { base: AbiType; nameFromError?: string } {
+  if (base.k !== "scalar" || (base.s !== "float" && base.s !== "double")) return { base };
+  const of = base.s;
+  for (const c of decl.namedChildren) {
+    if (c.type === "ERROR" && COMPLEX_WORDS.has(c.text.trim())) return { base: { k: "complex", of } };
+  }
+  const d = decl.childForFieldName("declarator");
+  const errAfter = decl.namedChildren.find((c) => c.type === "ERROR" && c.startIndex >= (d?.endIndex ?? 0));
+  if (d && (d.type === "identifier" || d.type === "field_identifier") && COMPLEX_WORDS.has(d.text)) {
+    return { base: { k: "complex", of }, nameFromError: errAfter?.text.trim() };
+  }
+  return { base };
+}
+
 export function readParams(list: Node, ctx: DeclCtx): { params: Param[]; variadic: boolean } {
   const params: Param[] = [];
   let variadic = false;
@@ -207,8 +228,9 @@ export function readParams(list: Node, ctx: DeclCtx): { params: Param[]; variadi
     }
     if (p.type !== "parameter_declaration" && p.type !== "optional_parameter_declaration") continue;
     const spec = p.childForFieldName("type");
-    const base = typeFromSpecifier(spec, ctx);
-    const d = applyDeclarator(p.childForFieldName("declarator"), base, hasConst(p), ctx);
+    const cx = complexBase(p, typeFromSpecifier(spec, ctx));
+    const d = applyDeclarator(p.childForFieldName("declarator"), cx.base, hasConst(p), ctx);
+    if (cx.nameFromError !== undefined) d.name = cx.nameFromError;
     let type = d.type;
     // Array parameters decay to pointers (C11 §6.7.6.3p7); keep the declared length as evidence.
     let arrayLen: string | undefined;

@@ -182,7 +182,7 @@ function readAttr(a: Node, info: AttrInfo): void {
   else if (name === "link_name" && strVal) info.linkName = strVal;
   else if (name === "repr" && args) {
     for (const c of args.namedChildren) {
-      if (c.type === "identifier") info.repr.push(c.text);
+      if (c.type === "identifier" || c.type === "primitive_type") info.repr.push(c.text);
       else if (c.type === "token_tree" && info.repr.length) {
         info.repr[info.repr.length - 1] += `(${c.text.slice(1, -1).trim()})`;
       }

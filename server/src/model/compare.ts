@@ -171,6 +171,9 @@ function comparePointee(model: Model, rt: AbiType, ct: AbiType, triple: Triple, 
   const d = compareOn(model, rt, ct, triple, level + 1);
   if (!d) return null;
   if (d.kind === "const" || d.kind === "sign" || d.kind === "name" || d.kind === "nullable") return d.kind === "const" ? { ...d, detail: `at the inner pointer level: ${d.detail}` } : d;
+  if (d.kind === "depth") {
+    return { kind: "depth", detail: `a different number of pointer levels: \`${describeRust(rt)}\` behind the pointer in Rust but \`${describeC(ct)}\` in C` };
+  }
   const lr = layoutOf(rt, { model, side: "rust", triple });
   const lc = layoutOf(ct, { model, side: "c", triple });
   const sizes = !lr.unknown && !lc.unknown ? ` (${lr.size}-byte items vs ${lc.size}-byte items)` : "";

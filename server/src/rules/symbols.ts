@@ -69,7 +69,8 @@ export const symbolsFamily: RuleFamily = {
       // Declared but defined nowhere.
       if (hasRust && exports.length === 0 && defs.length === 0) {
         for (const p of protos) {
-          if (!p.inHeader) continue;
+          // A function Rust imports is expected to live in a C library, possibly outside the workspace.
+          if (!p.inHeader || imports.length) continue;
           out.push(finding(NO_DEFINITION, p.nameRange, `\`${p.name}\` is declared here but neither a Rust export nor a C/C++ definition in the workspace provides it`, [], { data: { fn: p.id } }));
         }
         if (hasC) {

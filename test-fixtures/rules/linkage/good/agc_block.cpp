@@ -1,0 +1,8 @@
+#include "agc.h"
+
+extern "C" void agc_reset();
+
+void agc_block_work(float *x, size_t n) {
+    agc_run(x, n);
+    agc_reset();
+}

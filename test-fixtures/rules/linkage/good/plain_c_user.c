@@ -1,0 +1,2 @@
+#include "agc.h"
+void use_it(float *x) { agc_run(x, 4); }

@@ -1,0 +1,2 @@
+#include "strike.h"
+float strike_rate(float per_min) { return per_min * 2.0f; }

@@ -1,0 +1,56 @@
+import { describe, expect, test } from "vitest";
+import { checkDir } from "../helpers/analyze.js";
+
+// Scalar facts behind the per-target expectations (checked against clang/gcc in
+// tests/targets.oracle.test.ts): long is 4 bytes on ILP32 (i686 SysV psABI, AAPCS) and on
+// Windows x64 (LLP64); size_t is 4 bytes on the ILP32 targets; plain char is unsigned on
+// AAPCS and AAPCS64 and signed on x86.
+describe("signatures family", () => {
+  test("bad fixture: each mismatch at its header line, with the targets it affects", async () => {
+    const { lines, findings } = await checkDir("rules/signatures/bad");
+    expect(lines.sort()).toEqual([
+      "kern.h:7 arity-mismatch",
+      "kern.h:8 param-type-mismatch",
+      "kern.h:9 return-type-mismatch",
+      "kern.h:10 pointer-constness",
+      "kern.h:11 param-signedness",
+      "kern.h:11 param-type-mismatch",
+      "kern.h:12 param-type-mismatch",
+      "kern.h:13 param-signedness",
+      "kern.h:14 param-type-mismatch",
+      "kern.h:15 callback-mismatch",
+      "kern.h:16 arity-mismatch",
+      "kern.h:17 pointer-constness",
+    ].sort());
+    const byLine = (l: number, rule: string) => findings.find((f) => f.range.line === l - 1 && f.rule === rule)!;
+    // usize vs int: a width slip on 64-bit targets, a signedness slip on 32-bit ones
+    expect(byLine(11, "param-type-mismatch").targets).toEqual(["x86_64-unknown-linux-gnu", "aarch64-unknown-linux-gnu", "x86_64-pc-windows-msvc"]);
+    expect(byLine(11, "param-signedness").targets).toEqual(["armv7-unknown-linux-gnueabihf", "i686-unknown-linux-gnu"]);
+    // c_long vs int64_t: only where long is 4 bytes
+    expect(byLine(12, "param-type-mismatch").targets).toEqual(["armv7-unknown-linux-gnueabihf", "i686-unknown-linux-gnu", "x86_64-pc-windows-msvc"]);
+    expect(byLine(12, "param-type-mismatch").message).toContain("(on armv7, i686, x86_64-windows only)");
+    // i8 vs char: only where plain char is unsigned
+    expect(byLine(13, "param-signedness").targets).toEqual(["aarch64-unknown-linux-gnu", "armv7-unknown-linux-gnueabihf"]);
+    // Rust writing through a pointer the header declares const is an error; the reverse a warning
+    expect(byLine(10, "pointer-constness").severity).toBe("error");
+    expect(byLine(17, "pointer-constness").severity).toBe("warning");
+    // every finding carries the Rust side as related location
+    for (const f of findings) {
+      expect(f.related.length).toBeGreaterThan(0);
+      expect(f.related[0]!.range.file).toMatch(/kern\.rs$/);
+    }
+    expect(byLine(8, "param-type-mismatch").related[0]!.range.line + 1).toBe(7);
+  });
+
+  test("--target narrows: on x86_64 alone the long/int64 and char slips vanish", async () => {
+    const { lines } = await checkDir("rules/signatures/bad", { targets: ["x86_64-unknown-linux-gnu"] });
+    expect(lines).not.toContain("kern.h:12 param-type-mismatch");
+    expect(lines).not.toContain("kern.h:13 param-signedness");
+    expect(lines).toContain("kern.h:8 param-type-mismatch");
+  });
+
+  test("good fixture: typedef chains, #define aliases, references, NonNull, Option<fn>, complex, variadic import", async () => {
+    const { lines } = await checkDir("rules/signatures/good");
+    expect(lines).toEqual([]);
+  });
+});
