@@ -199,6 +199,10 @@ export interface CallSite {
   file: string;
   /** Enclosing function (or method) name. */
   inFn?: string;
+  /** Enclosing class, for a method (defined in the class or as `cls::name`). */
+  inClass?: string;
+  /** Method calls (`obj.f(…)`, `obj->f(…)`): the receiver; `callee` is then the method name. */
+  recv?: { expr: Expr; text: string; type?: AbiType; arrow: boolean };
 }
 
 export function rangeKey(r: Range): string {
