@@ -1,0 +1,134 @@
+// The fixed CLI interface: `ferrule check [--format text|json|sarif] [--target TRIPLE]... [PATH...]`
+// with exit codes 0/1/2 and the JSON shape fixed in DEVELOPERS.md. Runs the built bundle as a
+// user would (npm test builds it first).
+import { describe, expect, test } from "vitest";
+import { spawnSync } from "node:child_process";
+import * as fs from "node:fs";
+import * as os from "node:os";
+import * as path from "node:path";
+import Ajv from "ajv-draft-04";
+
+const ROOT = path.resolve(__dirname, "..");
+const BIN = path.join(ROOT, "bin/ferrule.js");
+
+function ferrule(args: string[], cwd = ROOT) {
+  const r = spawnSync(process.execPath, [BIN, ...args], { cwd, encoding: "utf8", timeout: 60_000 });
+  return { code: r.status, out: r.stdout, err: r.stderr };
+}
+
+describe("ferrule check on the demo", () => {
+  test("JSON: documented shape, exit 1, every planted slip with both locations", () => {
+    const r = ferrule(["check", "--format", "json", "test-fixtures/sonar-demo"]);
+    expect(r.code).toBe(1);
+    const j = JSON.parse(r.out);
+    expect(j.version).toBe(1);
+    for (const f of j.findings) {
+      expect(Object.keys(f)).toEqual(expect.arrayContaining(["rule", "severity", "file", "line", "column", "endLine", "endColumn", "message", "related"]));
+      expect(["error", "warning", "info", "hint"]).toContain(f.severity);
+      expect(f.file).not.toMatch(/^\//); // relative to cwd
+      expect(f.line).toBeGreaterThanOrEqual(1);
+      expect(f.column).toBeGreaterThanOrEqual(1);
+    }
+    const find = (rule: string, file: string, line: number) =>
+      j.findings.find((f: { rule: string; file: string; line: number }) => f.rule === rule && f.file === file && f.line === line);
+    const H = "test-fixtures/sonar-demo/include/sonar_kernels.h";
+    const RS = "test-fixtures/sonar-demo/kernels/src/lib.rs";
+    // 1: double *output vs *mut f32
+    const p1 = find("param-type-mismatch", H, 19);
+    expect(p1?.related[0]).toMatchObject({ file: RS, line: 26 });
+    // 2: long vs i64 on the three targets where long is 4 bytes
+    const p2 = find("param-type-mismatch", H, 26);
+    expect(p2?.message).toContain("armv7, i686, x86_64-windows only");
+    expect(p2?.related[0]).toMatchObject({ file: RS });
+    // 3: const spectrum written by Rust
+    expect(find("pointer-constness", H, 24)?.related[0]).toMatchObject({ file: RS });
+    // 4: no #[no_mangle]
+    expect(find("export-name-mangled", RS, 78)?.related[0]).toMatchObject({ file: H, line: 27 });
+    // 5: renamed on one side
+    expect(find("no-definition", H, 20)).toBeTruthy();
+    expect(find("no-c-declaration", RS, 43)).toBeTruthy();
+    // 6: nullable callback
+    expect(find("callback-mismatch", H, 28)?.severity).toBe("warning");
+  });
+
+  test("text format: file:line:col: severity: message [rule] and the related location below", () => {
+    const r = ferrule(["check", "test-fixtures/sonar-demo"]);
+    expect(r.code).toBe(1);
+    expect(r.out).toMatch(/^test-fixtures\/sonar-demo\/include\/sonar_kernels\.h:19:\d+: error: .* \[param-type-mismatch\]\n {4}test-fixtures\/sonar-demo\/kernels\/src\/lib\.rs:26:\d+: /m);
+    expect(r.err).toBe(""); // no progress line on a pipe
+  });
+
+  test("--target narrows the targets; a target-specific finding disappears on x86_64 alone", () => {
+    const all = JSON.parse(ferrule(["check", "--format", "json", "test-fixtures/sonar-demo"]).out).findings.length;
+    const one = JSON.parse(ferrule(["check", "--format", "json", "--target", "x86_64-unknown-linux-gnu", "test-fixtures/sonar-demo"]).out).findings;
+    expect(one.length).toBe(all - 1);
+    expect(one.some((f: { line: number; rule: string }) => f.rule === "param-type-mismatch" && f.line === 26)).toBe(false);
+  });
+
+  test("clean workspace exits 0 and says a clean result is not a proof", () => {
+    const r = ferrule(["check", "test-fixtures/rules/linkage/good"]);
+    expect(r.code).toBe(0);
+    expect(r.out).toContain("not a proof of memory safety");
+  });
+
+  test("SARIF output validates against the SARIF 2.1.0 schema (OASIS, rtm.5) and carries rule metadata", () => {
+    const r = ferrule(["check", "--format", "sarif", "test-fixtures/sonar-demo"]);
+    expect(r.code).toBe(1);
+    const log = JSON.parse(r.out);
+    // Schema: the OASIS SARIF 2.1.0 JSON schema (sarif-2.1.0-rtm.5), shipped as test data.
+    const schema = JSON.parse(fs.readFileSync(path.join(__dirname, "data/sarif-2.1.0-rtm.5.json"), "utf8"));
+    const ajv = new Ajv({ allErrors: true, strict: false, validateFormats: false, unicodeRegExp: false });
+    const validate = ajv.compile(schema);
+    const ok = validate(log);
+    expect(validate.errors ?? []).toEqual([]);
+    expect(ok).toBe(true);
+    const run = log.runs[0];
+    expect(run.tool.driver.rules.map((x: { id: string }) => x.id)).toContain("param-type-mismatch");
+    const res = run.results.find((x: { ruleId: string }) => x.ruleId === "param-type-mismatch");
+    expect(res.relatedLocations[0].physicalLocation.artifactLocation.uri).toMatch(/lib\.rs$/);
+    expect(run.tool.driver.rules[res.ruleIndex].id).toBe("param-type-mismatch");
+  });
+});
+
+describe("usage and configuration errors exit 2 with one line", () => {
+  for (const [name, args] of [
+    ["unknown flag", ["check", "--frobnicate"]],
+    ["unknown target", ["check", "--target", "mips-unknown-linux-gnu", "test-fixtures/sonar-demo"]],
+    ["missing path", ["check", "test-fixtures/does-not-exist"]],
+    ["unknown format", ["check", "--format", "xml"]],
+    ["unknown command", ["frob"]],
+  ] as const) {
+    test(name, () => {
+      const r = ferrule([...args]);
+      expect(r.code).toBe(2);
+      expect(r.err.trim().split("\n")).toHaveLength(1);
+      expect(r.err).toMatch(/^ferrule: /);
+    });
+  }
+
+  test("a bad .ferrule.toml names the file and the key", () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-cfg-"));
+    fs.writeFileSync(path.join(dir, ".ferrule.toml"), 'targets = ["x86_64", "pdp11"]\n');
+    fs.writeFileSync(path.join(dir, "a.rs"), "");
+    const r = ferrule(["check", dir]);
+    expect(r.code).toBe(2);
+    expect(r.err).toContain(".ferrule.toml");
+    expect(r.err).toContain("targets");
+    expect(r.err).toContain("pdp11");
+    fs.writeFileSync(path.join(dir, ".ferrule.toml"), "targets = [\n");
+    const r2 = ferrule(["check", dir]);
+    expect(r2.code).toBe(2);
+    expect(r2.err).toMatch(/\.ferrule\.toml: not valid TOML/);
+  });
+
+  test(".ferrule.toml targets and severity overrides apply", () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-cfg-"));
+    fs.cpSync(path.join(ROOT, "test-fixtures/sonar-demo"), dir, { recursive: true });
+    fs.writeFileSync(path.join(dir, ".ferrule.toml"), 'targets = ["x86_64"]\n[rules]\nparam-type-mismatch = "off"\npointer-constness = "warning"\nexport-name-mangled = "off"\n');
+    const r = ferrule(["check", "--format", "json", dir]);
+    const j = JSON.parse(r.out);
+    expect(j.findings.some((f: { rule: string }) => f.rule === "param-type-mismatch")).toBe(false);
+    expect(j.findings.find((f: { rule: string }) => f.rule === "pointer-constness").severity).toBe("warning");
+    expect(r.code).toBe(0); // nothing left at error severity
+  });
+});
