@@ -1,11 +1,12 @@
 // Extract layer entry: (path, text) → FileFacts. A pure function of its inputs, so callers may
 // cache the result by content hash. Never throws: trouble becomes a notice on the file.
 
-import { initParsers, isHeader, langOf, parseText, type Tree } from "../parse/parser.js";
+import { getLanguage, initParsers, isHeader, langOf, parseText, type Tree } from "../parse/parser.js";
 import type { FileFacts, Lang } from "../model/types.js";
 import { emptyFacts } from "./common.js";
 import { extractC } from "./c.js";
 import { extractRust } from "./rust.js";
+import "./plugins/index.js"; // rule families' body and call-site extractors register themselves
 import type { Suppression } from "../model/types.js";
 
 export { initParsers };
@@ -61,6 +62,19 @@ function countErrors(t: Tree): number {
 
 export interface ExtractOptions {
   maxFileBytes?: number;
+  /** A previous tree of this file, already adjusted with tree.edit(...), for incremental re-parsing
+   * (used by the language server). Ignored when its grammar differs from the one chosen now. */
+  oldTree?: Tree;
+  /** When given, the final tree is handed to the caller (who must delete it) instead of being deleted. */
+  keepTree?: (tree: Tree) => void;
+}
+
+function reusable(old: Tree | undefined, lang: Lang): Tree | undefined {
+  try {
+    return old && old.getLanguage() === getLanguage(lang) ? old : undefined;
+  } catch {
+    return undefined;
+  }
 }
 
 export function extractFile(file: string, text: string, opts: ExtractOptions = {}): FileFacts {
@@ -80,16 +94,16 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
   let tree: Tree | undefined;
   try {
     if (lang === "rust") {
-      tree = parseText("rust", text);
+      tree = parseText("rust", text, reusable(opts.oldTree, "rust"));
       const rf = extractRust(file, tree);
       if (text.includes("ferrule-allow")) collectSuppressions(tree, rf);
       return rf;
     }
     let useLang: Lang = lang;
-    tree = parseText(lang, text);
+    tree = parseText(lang, text, reusable(opts.oldTree, lang));
     if (lang === "c" && isHeader(file) && tree.rootNode.hasError) {
       // A .h file may hold C++; keep whichever grammar reads it with fewer errors.
-      const alt = parseText("cpp", text);
+      const alt = parseText("cpp", text, reusable(opts.oldTree, "cpp"));
       if (countErrors(alt) < countErrors(tree)) {
         tree.delete();
         tree = alt;
@@ -110,6 +124,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     });
     return f;
   } finally {
-    tree?.delete();
+    if (tree && opts.keepTree) opts.keepTree(tree);
+    else tree?.delete();
   }
 }

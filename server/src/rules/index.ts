@@ -10,7 +10,6 @@ import { linkageFamily } from "./linkage.js";
 import { layoutFamily } from "./layout.js";
 import { buffersFamily } from "./buffers.js";
 import { ownershipFamily } from "./ownership.js";
-import "../extract/plugins/index.js";
 
 export const INTERNAL: RuleMeta = {
   id: "internal-error",
