@@ -6,12 +6,14 @@ import * as fs from "node:fs";
 import * as path from "node:path";
 import { pathToFileURL } from "node:url";
 import { Workspace } from "../analysis/workspace.js";
+import { bundleScript } from "../analysis/parallel.js";
 import { CONFIG_FILE, ConfigError, DEFAULTS, parseConfigText, type FerruleConfig } from "../analysis/config.js";
 import { ALL_TRIPLES, parseTriple, type Triple } from "../model/targets.js";
 import { allRules } from "../rules/index.js";
 import { formatJson, formatSarif, formatText, toJsonFinding, type JsonFinding } from "./format.js";
 import { formatLayoutText, layoutTypes } from "./layout-cmd.js";
 import { fixesFor } from "../fixes/index.js";
+import { makeBaseline, newSince, readBaseline } from "./baseline.js";
 
 export const VERSION = "0.1.0";
 
@@ -20,7 +22,8 @@ class UsageError extends Error {}
 const HELP = `ferrule ${VERSION} — checks the C ABI seam between Rust and C/C++
 
 usage:
-  ferrule check [--format text|json|sarif] [--target TRIPLE]... [--config FILE] [--show-fixes] [PATH...]
+  ferrule check [--format text|json|sarif] [--target TRIPLE]... [--config FILE] [--show-fixes]
+                [--baseline FILE [--update-baseline]] [PATH...]
   ferrule layout [--target TRIPLE]... [--format json|text] PATH...
   ferrule lsp --stdio
 
@@ -36,13 +39,15 @@ interface Opts {
   config?: string;
   showFixes: boolean;
   stdio: boolean;
+  baseline?: string;
+  updateBaseline: boolean;
 }
 
 function parseArgs(argv: string[]): Opts {
   const [cmd, ...rest] = argv;
   if (!cmd || cmd === "--help" || cmd === "-h" || cmd === "help") throw new UsageError("");
   if (!["check", "layout", "lsp"].includes(cmd)) throw new UsageError(`unknown command \`${cmd}\` (expected check, layout or lsp)`);
-  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false };
+  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false, updateBaseline: false };
   for (let i = 0; i < rest.length; i++) {
     const a = rest[i]!;
     const val = (): string => {
@@ -65,12 +70,15 @@ function parseArgs(argv: string[]): Opts {
       if (!o.targets.includes(t)) o.targets.push(t);
     } else if (flag === "--config") o.config = val();
     else if (flag === "--show-fixes") o.showFixes = true;
+    else if (flag === "--baseline") o.baseline = val();
+    else if (flag === "--update-baseline") o.updateBaseline = true;
     else if (flag === "--stdio") o.stdio = true;
     else if (a === "--help" || a === "-h") throw new UsageError("");
     else if (a.startsWith("-")) throw new UsageError(`unknown option \`${a}\``);
     else o.paths.push(a);
   }
   if (cmd === "lsp" && !o.stdio) throw new UsageError("lsp needs --stdio");
+  if (o.updateBaseline && !o.baseline) throw new UsageError("--update-baseline needs --baseline FILE");
   return o;
 }
 
@@ -154,7 +162,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   const progress = io.isTTY
     ? (n: number, total: number) => io.stderr(`\rferrule: reading ${n}/${total} files…`)
     : undefined;
-  ws.loadAll(paths.map((p) => path.resolve(io.cwd, p)), progress);
+  await ws.loadAllAsync(paths.map((p) => path.resolve(io.cwd, p)), progress, { script: bundleScript() });
   if (progress) io.stderr("\r\x1b[K");
 
   if (o.cmd === "layout") {
@@ -164,7 +172,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   }
 
   const findings = ws.check();
-  const json: JsonFinding[] = findings.map((f) => {
+  let json: JsonFinding[] = findings.map((f) => {
     const j = toJsonFinding(f, io.cwd);
     if (o.showFixes) {
       const fx = fixesFor(f, ws.model());
@@ -177,10 +185,32 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
     }
     return j;
   });
+  let baselined = 0;
+  if (o.baseline) {
+    const file = path.resolve(io.cwd, o.baseline);
+    if (!fs.existsSync(file) || o.updateBaseline) {
+      // The only file `check` ever writes, and only where the user named it.
+      fs.writeFileSync(file, JSON.stringify(makeBaseline(json), null, 2) + "\n");
+      io.stderr(`ferrule: wrote baseline of ${json.length} finding(s) to ${o.baseline}\n`);
+      baselined = json.length;
+      json = [];
+    } else {
+      let base;
+      try {
+        base = readBaseline(file);
+      } catch (e) {
+        io.stderr(`ferrule: baseline ${o.baseline}: ${(e as Error).message}\n`);
+        return 2;
+      }
+      const fresh = newSince(json, base);
+      baselined = json.length - fresh.length;
+      json = fresh;
+    }
+  }
   if (o.format === "json") io.stdout(formatJson(json));
   else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
-  else io.stdout(formatText(json, io.isTTY && !process.env.NO_COLOR));
-  return findings.some((f) => f.severity === "error") ? 1 : 0;
+  else io.stdout(formatText(json, io.isTTY && !process.env.NO_COLOR) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
+  return json.some((f) => f.severity === "error") ? 1 : 0;
 }
 
 export async function main(): Promise<void> {

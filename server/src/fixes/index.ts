@@ -48,10 +48,15 @@ function paramSync(f: Finding, model: Model): Fix[] {
     const rp = rust.params[i];
     const cp = c.params[i];
     if (!rp || !cp) return [];
-    out.push({ title: `Change the C parameter to match Rust: \`${cDecl(rp.type, cp.name)}\``, edits: [{ range: cp.range, newText: cDecl(rp.type, cp.name) }], preferred: true });
-    out.push({ title: `Change the Rust parameter to match C: \`${rustSpell(cp.type, model)}\``, edits: [{ range: rp.typeRange, newText: rustSpell(cp.type, model) }] });
+    // C cannot promise a non-null function pointer, so a nullability slip is fixed on the Rust side only.
+    const rustFirst = f.data?.diff === "nullable";
+    if (!rustFirst) {
+      const cText = cDecl(rp.type, cp.name, model);
+      out.push({ title: `Change the C parameter to match Rust: \`${cText}\``, edits: [{ range: cp.range, newText: cText }], preferred: true });
+    }
+    out.push({ title: `Change the Rust parameter to match C: \`${rustSpell(cp.type, model)}\``, edits: [{ range: rp.typeRange, newText: rustSpell(cp.type, model) }], preferred: rustFirst });
   } else if (f.data?.ret && c.retRange) {
-    out.push({ title: "Replace the C prototype with one generated from the Rust signature", edits: [{ range: c.range, newText: cPrototype(rust) }], preferred: true });
+    out.push({ title: "Replace the C prototype with one generated from the Rust signature", edits: [{ range: c.range, newText: cPrototype(rust, model) }], preferred: true });
   }
   return out;
 }
@@ -60,7 +65,7 @@ function syncWholePrototype(f: Finding, model: Model): Fix[] {
   const rust = model.fnById(f.data?.rust);
   const c = model.fnById(f.data?.c);
   if (!rust || !c || c.role !== "proto" || rust.role !== "export") return [];
-  return [{ title: "Replace the C prototype with one generated from the Rust signature", edits: [{ range: c.range, newText: cPrototype(rust) }], preferred: true }];
+  return [{ title: "Replace the C prototype with one generated from the Rust signature", edits: [{ range: c.range, newText: cPrototype(rust, model) }], preferred: true }];
 }
 
 function rustExportFix(f: Finding, model: Model): Fix[] {
@@ -79,7 +84,11 @@ function rustExportFix(f: Finding, model: Model): Fix[] {
 
 function linkageFix(f: Finding, model: Model): Fix[] {
   const header = f.data?.header;
-  if (typeof header !== "string") return [];
+  if (typeof header !== "string") {
+    const fn = model.fnById(f.data?.fn);
+    if (!fn) return [];
+    return [{ title: 'Declare it extern "C"', edits: [{ range: at(fn.range), newText: 'extern "C" ' }], preferred: true }];
+  }
   const facts = model.files.get(header);
   if (!facts) return [];
   const fns = facts.fns.filter((x) => x.role === "proto" && !x.cLinkage);
@@ -114,7 +123,7 @@ function addDeclarationFix(f: Finding, model: Model): Fix[] {
   const target = [...votes.values()][0];
   if (!target) return [];
   const line = target.range.endLine + 1;
-  return [{ title: `Declare \`${fn.symbol}\` in ${target.file.split("/").pop()}`, edits: [{ range: { file: target.file, line, col: 0, endLine: line, endCol: 0 }, newText: cPrototype(fn) + "\n" }], preferred: true }];
+  return [{ title: `Declare \`${fn.symbol}\` in ${target.file.split("/").pop()}`, edits: [{ range: { file: target.file, line, col: 0, endLine: line, endCol: 0 }, newText: cPrototype(fn, model) + "\n" }], preferred: true }];
 }
 
 registerFix("param-type-mismatch", paramSync);
