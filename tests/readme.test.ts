@@ -1,0 +1,24 @@
+// The README's promises: the rules table matches the rule metadata, and its two commands exist.
+import { expect, test } from "vitest";
+import * as fs from "node:fs";
+import * as path from "node:path";
+import { FAMILIES, INTERNAL, FILE_SKIPPED } from "../server/src/rules/index.js";
+import { rulesMarkdown } from "../server/src/cli/rules-doc.js";
+
+const README = fs.readFileSync(path.resolve(__dirname, "../README.md"), "utf8");
+
+test("README rules table is generated from the rule metadata (run npm run docs:rules)", () => {
+  expect(README).toContain(rulesMarkdown(FAMILIES, [INTERNAL, FILE_SKIPPED]));
+});
+
+test("README starts with one paragraph, then the demo command and the test command", () => {
+  const blocks = README.split(/\n```/);
+  expect(blocks[1]).toContain("npx ferrule check test-fixtures/sonar-demo");
+  expect(README).toMatch(/```(?:sh|bash)?\nnpm ci && npm test\n```/);
+  expect(README).toContain("not a proof of memory safety");
+});
+
+test("every rule id is unique", () => {
+  const ids = FAMILIES.flatMap((f) => f.rules.map((r) => r.id));
+  expect(new Set(ids).size).toBe(ids.length);
+});
