@@ -12,6 +12,7 @@ import type { FileFacts } from "../model/types.js";
 import { runRules, type Finding } from "../rules/index.js";
 import { DEFAULTS, type FerruleConfig } from "./config.js";
 import { applySuppressions } from "./suppress.js";
+import { loadFiles } from "./parallel.js";
 
 export const SKIP_DIRS = new Set(["target", "node_modules", ".git", "build", "out", "dist", ".cache", ".svn", ".hg", "__pycache__"]);
 
@@ -29,11 +30,14 @@ export interface WalkResult {
   notices: Finding[];
 }
 
-/** Lists the source files under the given paths (absolute), never following a symlink loop. */
-export function listSources(paths: string[], exclude: string[] = [], onProgress?: (n: number) => void): WalkResult {
+/** Lists the source files under the given paths (absolute), never following a symlink loop, and
+ * never following a symlink that leads outside `roots` (default: the given paths). */
+export function listSources(paths: string[], exclude: string[] = [], onProgress?: (n: number) => void, roots: string[] = paths): WalkResult {
   const files: string[] = [];
   const notices: Finding[] = [];
   const seen = new Set<string>();
+  const rootReals = roots.map((r) => { try { return fs.realpathSync(path.resolve(r)); } catch { return path.resolve(r); } });
+  const inside = (real: string) => rootReals.some((r) => real === r || real.startsWith(r.endsWith(path.sep) ? r : r + path.sep));
   const excluded = (p: string) => exclude.some((g) => globMatch(g, p));
   const visit = (p: string, depth: number) => {
     let st: fs.Stats;
@@ -45,6 +49,10 @@ export function listSources(paths: string[], exclude: string[] = [], onProgress?
     }
     let real: string;
     try { real = fs.realpathSync(p); } catch { real = p; }
+    if (!inside(real)) {
+      notices.push(skipNotice(p, `a symbolic link to ${real}, outside the workspace and the configured include paths; not followed`));
+      return;
+    }
     if (seen.has(real)) return;
     seen.add(real);
     if (st.isDirectory()) {
@@ -139,8 +147,18 @@ export class Workspace {
     this.invalidate();
   }
 
+  /** Like loadAll, but reading and extraction run on worker threads when `opts.script` names the
+   * running bundle and there are enough files (see analysis/parallel.ts). */
+  async loadAllAsync(paths: string[], onProgress?: (n: number, total: number) => void, opts: { script?: string; workers?: number } = {}): Promise<void> {
+    const walk = listSources(paths, this.config.exclude, undefined, [...paths, ...this.config.includePaths]);
+    this.walkNotices.push(...walk.notices);
+    const loaded = await loadFiles(walk.files, { maxFileBytes: this.config.maxFileBytes, script: opts.script, workers: opts.workers, onProgress });
+    for (const r of loaded) this.entries.set(r.file, { hash: r.hash, facts: r.facts });
+    this.invalidate();
+  }
+
   loadAll(paths: string[], onProgress?: (n: number, total: number) => void): void {
-    const walk = listSources(paths, this.config.exclude);
+    const walk = listSources(paths, this.config.exclude, undefined, [...paths, ...this.config.includePaths]);
     this.walkNotices.push(...walk.notices);
     walk.files.forEach((f, i) => {
       this.load(f);

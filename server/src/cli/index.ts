@@ -5,4 +5,5 @@ import * as v8 from "node:v8";
 // inputs (measured: scripts/bench.mjs; a 9,000-line header parses in the same ~340 ms either way).
 v8.setFlagsFromString("--liftoff-only");
 // eslint-disable-next-line import/first
-import("./main.js").then((m) => m.main());
+// A worker thread started by analysis/parallel.ts runs this same bundle and serves extraction.
+import("../analysis/parallel.js").then((p) => p.runWorkerIfAsked() || import("./main.js").then((m) => m.main()));
