@@ -25,6 +25,8 @@ export interface CVar {
   constElems?: boolean;
   /** The initialiser, when any. */
   init?: Expr;
+  /** When the initialiser is an explicit cast: the type of what was cast. */
+  castFrom?: AbiType;
   range: Range;
 }
 
@@ -101,4 +103,16 @@ export interface RustBufferFacts {
   derefs: RustDerefFact[];
   /** Simple `let name = expr;` bindings, for following a length or pointer through a local. */
   lets: { name: string; expr: Expr; range: Range; pos: number }[];
+}
+
+/** An explicit length declaration found on a C/C++ declaration (stored in `FileFacts.extra.bufferHints[fnId]`). */
+export interface BufferHint {
+  ptr: string;
+  len: Expr;
+  lenText: string;
+  unit: "items" | "bytes";
+  source: "gcc-access" | "c99-array" | "counted-by";
+  access?: "read_only" | "write_only" | "read_write" | "none";
+  range: Range;
+  evidence: string;
 }

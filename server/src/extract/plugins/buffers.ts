@@ -15,7 +15,8 @@
 
 import type { Node } from "../../parse/parser.js";
 import type { AbiType, CallSite, Expr, FileFacts, FnDecl, Range } from "../../model/types.js";
-import type { CBufferFacts, CFnScope, CVar, RustBufferFacts } from "../../model/buffer-facts.js";
+import type { BufferHint, CBufferFacts, CFnScope, CVar, RustBufferFacts } from "../../model/buffer-facts.js";
+import { parseText } from "../../parse/parser.js";
 import { cFileExtractors, rustExtractors } from "../hooks.js";
 import { evalConst, parseIntLit, rangeOf, walk } from "../common.js";
 import { applyDeclarator, cScalar, readParams, typeFromSpecifier, type DeclCtx } from "../ctypes.js";
@@ -191,7 +192,12 @@ function varsFromDeclaration(d: Node, kind: CVar["kind"], file: string, ctx: Dec
     if (!decl.name || decl.fn) continue;
     const initNode = dn.type === "init_declarator" ? dn.childForFieldName("value") : null;
     const v: CVar = { name: decl.name, kind, type: decl.type, text: d.text.length > 200 ? d.text.slice(0, 200) : d.text, line: d.startPosition.row, range: rangeOf(file, dn) };
-    if (initNode && initNode.type !== "argument_list" && initNode.type !== "initializer_list") v.init = cExpr(initNode, ctx);
+    if (initNode && initNode.type !== "argument_list" && initNode.type !== "initializer_list") {
+      v.init = cExpr(initNode, ctx);
+      const ci = castOperand(initNode);
+      const ft = ci ? inferCType(ci, scope, ctx) : undefined;
+      if (ft) v.castFrom = ft;
+    }
     if (decl.type.k === "array") {
       v.container = "carray";
       v.elem = decl.type.of;
@@ -453,6 +459,17 @@ function extractCFile(root: Node, facts: FileFacts): void {
   facts.extra.buffers = out;
 }
 
+function castOperand(a: Node): Node | null {
+  let n: Node | null = a;
+  while (n?.type === "parenthesized_expression") n = n.namedChild(0);
+  if (!n) return null;
+  if (n.type === "cast_expression") return n.childForFieldName("value");
+  if (n.type === "call_expression" && n.childForFieldName("function")?.type === "template_function" && /^(static_cast|reinterpret_cast|const_cast)$/.test(n.childForFieldName("function")?.childForFieldName("name")?.text ?? "")) {
+    return n.childForFieldName("arguments")?.namedChild(0) ?? null;
+  }
+  return null;
+}
+
 function callSite(m: Node, scope: Scope, ctx: DeclCtx, file: string): CallSite | undefined {
   const f = m.childForFieldName("function");
   const argList = m.childForFieldName("arguments");
@@ -478,6 +495,12 @@ function callSite(m: Node, scope: Scope, ctx: DeclCtx, file: string): CallSite |
     const arg: CallSite["args"][number] = { expr: cExpr(a, ctx), text: a.text.length > 300 ? a.text.slice(0, 300) : a.text, range: rangeOf(file, a) };
     const t = inferCType(a, scope, ctx);
     if (t) arg.type = t;
+    // An explicit cast: remember what was cast, so rules can see `(const float *)cbuf` of complex items.
+    const castInner = castOperand(a);
+    if (castInner) {
+      const ft = inferCType(castInner, scope, ctx);
+      if (ft) (arg as typeof arg & { castFrom?: AbiType }).castFrom = ft;
+    }
     args.push(arg);
   }
   const cs: CallSite = { callee, args, range: rangeOf(file, m), calleeRange: rangeOf(file, f.type === "field_expression" ? f.childForFieldName("field") ?? f : f), file };
@@ -485,11 +508,375 @@ function callSite(m: Node, scope: Scope, ctx: DeclCtx, file: string): CallSite |
   return cs;
 }
 
+/**
+ * Explicit length declarations on C prototypes and definitions: GCC `access` attributes, C99
+ * array parameters (`float out[static n]`) and clang's `__counted_by(n)` / `__sized_by(n)`.
+ * Stored as `FileFacts.extra.bufferHints[fn.id]`.
+ */
+function collectCHints(facts: FileFacts): void {
+  const hints: Record<string, BufferHint[]> = {};
+  for (const fn of facts.fns) {
+    const list: BufferHint[] = [];
+    fn.params.forEach((p, i) => {
+      // clang bounds-safety macros: `float *__counted_by(n) out` reads as a function declarator
+      // to the grammar; the macro argument is opaque text, so it is read from the parameter text.
+      const cb = /__(counted_by|sized_by)(?:_or_null)?\s*\(\s*([A-Za-z_]\w*)\s*\)\s*([A-Za-z_]\w*)\s*$/.exec(p.text) ?? /__attribute__\s*\(\(\s*(counted_by|sized_by)\s*\(\s*([A-Za-z_]\w*)\s*\)\s*\)\)\s*([A-Za-z_]\w*)?\s*$/.exec(p.text);
+      if (cb) {
+        if (p.name === "__counted_by" || p.name === "__sized_by" || p.name.startsWith("__counted_by") || p.name.startsWith("__sized_by")) {
+          const base = /\bconst\b/.test(p.text.split("__")[0] ?? "");
+          const spec = (p.text.split("*")[0] ?? "").replace(/\bconst\b/g, "").trim();
+          const to = cTypeFromText(spec) ?? { k: "unknown", text: spec };
+          p.name = cb[3] ?? p.name;
+          p.type = { k: "ptr", to: to.k === "named" && spec === "void" ? { k: "void" } : spec === "void" ? { k: "void" } : to, mut: !base, via: "raw" };
+        }
+        list.push({ ptr: p.name || `#${i}`, len: { k: "ident", name: cb[2]! }, lenText: cb[2]!, unit: cb[1] === "sized_by" ? "bytes" : "items", source: "counted-by", range: p.range, evidence: `\`${cb[0].trim()}\`` });
+      }
+      const al = (p as typeof p & { arrayLen?: string }).arrayLen;
+      if (al !== undefined) {
+        const text = al.replace(/^\s*static\s+/, "").replace(/\b(const|restrict|volatile)\b/g, "").trim();
+        if (text && text !== "*") {
+          const e = parseCExprText(text);
+          if (e && !(e.k === "num")) list.push({ ptr: p.name, len: e, lenText: text, unit: "items", source: "c99-array", range: p.range, evidence: `array parameter \`${p.text.trim()}\`` });
+        }
+      }
+    });
+    for (const a of fn.attrs) {
+      const re = /\baccess\s*\(\s*(read_only|write_only|read_write|none)\s*,\s*(\d+)\s*(?:,\s*(\d+)\s*)?\)/g;
+      let m: RegExpExecArray | null;
+      while ((m = re.exec(a))) {
+        const pi = Number(m[2]) - 1;
+        const li = m[3] ? Number(m[3]) - 1 : -1;
+        const p = fn.params[pi];
+        const lp = li >= 0 ? fn.params[li] : undefined;
+        if (!p) continue;
+        // GCC "Common Function Attributes", access: the size argument counts elements of the
+        // pointed-to type, bytes for `void *` (from memory of the GCC manual).
+        const unit = p.type.k === "ptr" && p.type.to.k === "void" ? "bytes" : "items";
+        const h: BufferHint = { ptr: p.name, len: lp ? { k: "ident", name: lp.name } : { k: "other", text: "" }, lenText: lp?.name ?? "", unit, source: "gcc-access", access: m[1] as BufferHint["access"], range: fn.nameRange, evidence: `\`__attribute__((access(${m[1]}, ${m[2]}${m[3] ? ", " + m[3] : ""})))\`` };
+        list.push(h);
+      }
+    }
+    if (list.length) hints[fn.id] = list;
+  }
+  facts.extra.bufferHints = hints;
+}
+
+function parseCExprText(text: string): Expr | undefined {
+  if (text.length > 200) return undefined;
+  const t = parseText("c", `int _ferrule_len = (${text});`);
+  try {
+    let found: Expr | undefined;
+    walk(t.rootNode, (m) => {
+      if (found) return false;
+      if (m.type === "init_declarator") {
+        found = cExpr(m.childForFieldName("value"), { file: "", consts: new Map() });
+        return false;
+      }
+      return;
+    });
+    return found;
+  } finally {
+    t.delete();
+  }
+}
+
 cFileExtractors.file.push((root, facts) => {
   try {
     extractCFile(root, facts);
+    collectCHints(facts);
   } catch (e) {
     facts.notices.push({ rule: "internal-error", severity: "warning", message: `ferrule could not read call sites in ${facts.file}: ${(e as Error).message}`, range: { file: facts.file, line: 0, col: 0, endLine: 0, endCol: 0 } });
+  }
+});
+
+// ---------------------------------------------------------------------------------------------
+// Rust bodies
+
+const RUST_CTX_FILE = { file: "", consts: new Map<string, number>() };
+
+/** Rust expression node → Expr. `unsafe { e }` and `{ e }` become their tail expression. */
+export function rustExpr(n: Node | null, depth = 0): Expr {
+  if (!n) return { k: "other", text: "" };
+  if (depth > 60) return { k: "other", text: n.text.slice(0, 200) };
+  switch (n.type) {
+    case "identifier":
+    case "self":
+      return { k: "ident", name: n.text };
+    case "scoped_identifier":
+      return { k: "ident", name: n.text };
+    case "integer_literal": {
+      const v = parseIntLit(n.text);
+      return { k: "num", value: v ?? 0, text: n.text };
+    }
+    case "float_literal":
+      return { k: "num", value: Number.parseFloat(n.text.replace(/_/g, "").replace(/f(32|64)$/, "")) || 0, text: n.text };
+    case "parenthesized_expression":
+      return rustExpr(n.namedChild(0), depth + 1);
+    case "unsafe_block":
+    case "block": {
+      const b = n.type === "unsafe_block" ? n.namedChildren.find((c) => c.type === "block") ?? null : n;
+      const kids = (b?.namedChildren ?? []).filter((c) => !c.type.endsWith("comment"));
+      const last = kids[kids.length - 1];
+      if (last && last.type !== "expression_statement" && last.type !== "let_declaration") return rustExpr(last, depth + 1);
+      return { k: "other", text: n.text.slice(0, 200) };
+    }
+    case "binary_expression":
+      return { k: "bin", op: n.childForFieldName("operator")?.text ?? n.child(1)?.text ?? "?", l: rustExpr(n.childForFieldName("left"), depth + 1), r: rustExpr(n.childForFieldName("right"), depth + 1) };
+    case "unary_expression":
+      return { k: "un", op: n.child(0)?.text ?? "?", e: rustExpr(n.namedChild(0), depth + 1) };
+    case "reference_expression":
+      return { k: "un", op: n.children.some((c) => c.type === "mutable_specifier") ? "&mut" : "&", e: rustExpr(n.childForFieldName("value"), depth + 1) };
+    case "type_cast_expression": {
+      const tn = n.childForFieldName("type");
+      return { k: "cast", e: rustExpr(n.childForFieldName("value"), depth + 1), to: rustType(tn, RUST_CTX_FILE), toText: tn?.text ?? "", style: "as" };
+    }
+    case "field_expression":
+      return { k: "field", e: rustExpr(n.childForFieldName("value"), depth + 1), name: n.childForFieldName("field")?.text ?? "" };
+    case "index_expression":
+      return { k: "index", e: rustExpr(n.namedChild(0), depth + 1), idx: rustExpr(n.namedChild(1), depth + 1) };
+    case "call_expression": {
+      let f = n.childForFieldName("function");
+      const args = (n.childForFieldName("arguments")?.namedChildren ?? []).filter((a) => !a.type.endsWith("comment") && a.type !== "attribute_item").map((a) => rustExpr(a, depth + 1));
+      let targs: Node[] = [];
+      if (f?.type === "generic_function") {
+        targs = f.childForFieldName("type_arguments")?.namedChildren ?? [];
+        f = f.childForFieldName("function");
+      }
+      if (f?.type === "field_expression") {
+        const m = f.childForFieldName("field")?.text ?? "";
+        const recv = rustExpr(f.childForFieldName("value"), depth + 1);
+        if (m === "cast" && targs[0]) {
+          const to = rustType(targs[0], RUST_CTX_FILE);
+          return { k: "cast", e: recv, to: { k: "ptr", to, mut: true, via: "raw", nullable: true }, toText: `*_ ${targs[0].text}`, style: "cast" };
+        }
+        return { k: "call", callee: m, args, recv };
+      }
+      const callee = (f?.text ?? "").replace(/\s+/g, "");
+      const last = callee.split("::").pop() ?? "";
+      if ((last === "size_of" || last === "align_of") && targs[0]) {
+        const t = rustType(targs[0], RUST_CTX_FILE);
+        if (last === "size_of") return { k: "sizeof", type: t, typeText: targs[0].text };
+      }
+      if (last === "size_of_val" && args[0]) return { k: "sizeof", expr: args[0] };
+      const c: Expr = { k: "call", callee, args };
+      if (targs[0]) (c as Expr & { targs?: string[] }).targs = targs.map((t) => t.text);
+      return c;
+    }
+  }
+  return { k: "other", text: n.text.length > 200 ? n.text.slice(0, 200) : n.text };
+}
+
+const PTR_PASSTHROUGH = new Set(["add", "offset", "sub", "wrapping_add", "wrapping_sub", "wrapping_offset", "byte_add", "cast_mut", "cast_const", "as_ptr", "as_mut_ptr"]);
+
+/** The variable a pointer expression derives from (through casts, `.add(i)`, `.cast()` …). */
+export function exprRoot(e: Expr): string | undefined {
+  let cur: Expr = e;
+  for (let g = 0; g < 50; g++) {
+    if (cur.k === "ident") return cur.name;
+    if (cur.k === "cast") { cur = cur.e; continue; }
+    if (cur.k === "call" && cur.recv && PTR_PASSTHROUGH.has(cur.callee)) { cur = cur.recv; continue; }
+    if (cur.k === "bin" && (cur.op === "+" || cur.op === "-")) { cur = cur.l; continue; } // C pointer arithmetic
+    return undefined;
+  }
+  return undefined;
+}
+
+function extractRustBody(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
+  const file = facts.file;
+  const body = fnNode.childForFieldName("body");
+  if (!body) return;
+  const out: RustBufferFacts = { slices: [], writes: [], copies: [], nullChecks: [], derefs: [], lets: [] };
+  const params = new Set(fn.params.map((p) => p.name));
+  /** Names bound in the body: to the parameter they alias, or to undefined (shadowing). */
+  const bound = new Map<string, string | undefined>();
+  const rootOf = (e: Expr): string | undefined => {
+    const r = exprRoot(e);
+    if (!r) return undefined;
+    if (bound.has(r)) return bound.get(r);
+    return params.has(r) ? r : undefined;
+  };
+  const bindPattern = (pat: Node | null) => {
+    if (!pat) return;
+    walk(pat, (m) => { if (m.type === "identifier") bound.set(m.text, undefined); });
+  };
+  const base = fnNode.startIndex;
+  walk(body, (n) => {
+    const pos = n.startIndex - base;
+    switch (n.type) {
+      case "function_item":
+      case "closure_expression": {
+        if (n.type === "closure_expression") bindPattern(n.childForFieldName("parameters"));
+        else return false;
+        return;
+      }
+      case "for_expression":
+        bindPattern(n.childForFieldName("pattern"));
+        return;
+      case "let_condition":
+      case "match_arm":
+        bindPattern(n.childForFieldName("pattern"));
+        return;
+      case "let_declaration": {
+        const pat = n.childForFieldName("pattern");
+        const val = n.childForFieldName("value");
+        if (pat?.type === "identifier" && val) {
+          const e = rustExpr(val);
+          out.lets.push({ name: pat.text, expr: e, range: rangeOf(file, n), pos });
+          // Visit the value before binding the name (`let taps = from_raw_parts(taps, n)`).
+          walkValue(val);
+          bound.set(pat.text, rootOf(e));
+          return false;
+        }
+        bindPattern(pat);
+        return;
+      }
+    }
+    visitNode(n, pos);
+    return;
+  });
+
+  function walkValue(val: Node) {
+    walk(val, (m) => {
+      if (m.type === "function_item") return false;
+      if (m.type === "closure_expression") bindPattern(m.childForFieldName("parameters"));
+      visitNode(m, m.startIndex - base);
+      return;
+    });
+  }
+
+  function letTypeElem(n: Node): { elem?: AbiType; text?: string } {
+    // `let s: &[T] = …from_raw_parts(…)`
+    for (let p = n.parent; p && p !== body; p = p.parent) {
+      if (p.type === "let_declaration") {
+        const t = p.childForFieldName("type");
+        if (t?.type === "reference_type") {
+          const inner = t.childForFieldName("type");
+          if (inner?.type === "array_type" && !inner.childForFieldName("length")) {
+            const el = inner.childForFieldName("element");
+            return { elem: rustType(el, RUST_CTX_FILE), text: el?.text };
+          }
+        }
+        return {};
+      }
+      if (p.type === "expression_statement" || p.type === "block" && p.parent?.type !== "unsafe_block") return {};
+    }
+    return {};
+  }
+
+  function visitNode(n: Node, pos: number): void {
+    switch (n.type) {
+      case "call_expression": {
+        const e = rustExpr(n);
+        if (e.k === "call" && !e.recv) {
+          const last = e.callee.split("::").pop() ?? "";
+          if ((last === "from_raw_parts" || last === "from_raw_parts_mut") && e.args.length === 2) {
+            const lenNode = n.childForFieldName("arguments")?.namedChildren.filter((a) => !a.type.endsWith("comment"))[1];
+            const sf: RustBufferFacts["slices"][number] = { mut: last.endsWith("_mut"), ptr: e.args[0]!, len: e.args[1]!, lenText: lenNode?.text ?? "", range: rangeOf(file, n), pos };
+            const root = rootOf(e.args[0]!);
+            if (root) sf.root = root;
+            const targs = (e as Expr & { targs?: string[] }).targs;
+            const f = n.childForFieldName("function");
+            const ta = f?.type === "generic_function" ? f.childForFieldName("type_arguments")?.namedChildren[0] : undefined;
+            if (ta && targs) { sf.elem = rustType(ta, RUST_CTX_FILE); sf.elemText = ta.text; }
+            else {
+              let p0: Expr = e.args[0]!;
+              if (p0.k === "cast" && p0.to.k === "ptr") { sf.elem = p0.to.to; sf.elemText = p0.toText.replace(/^\*\s*(const|mut|_)\s*/, ""); }
+              else {
+                const lt = letTypeElem(n);
+                if (lt.elem) { sf.elem = lt.elem; sf.elemText = lt.text; }
+              }
+              void p0;
+            }
+            out.slices.push(sf);
+            return;
+          }
+          if ((last === "copy_nonoverlapping" || last === "copy") && e.args.length === 3 && /(^|::)ptr::|^copy/.test(e.callee)) {
+            const cnt = n.childForFieldName("arguments")?.namedChildren.filter((a) => !a.type.endsWith("comment"))[2];
+            const c: RustBufferFacts["copies"][number] = { callee: last, src: e.args[0]!, dst: e.args[1]!, count: e.args[2]!, countText: cnt?.text ?? "", range: rangeOf(file, n), pos };
+            const sr = rootOf(e.args[0]!); if (sr) c.srcRoot = sr;
+            const dr = rootOf(e.args[1]!); if (dr) c.dstRoot = dr;
+            out.copies.push(c);
+            return;
+          }
+          if ((last === "write" || last === "write_unaligned" || last === "write_volatile" || last === "write_bytes") && /ptr::/.test(e.callee) && e.args[0]) {
+            const r = rootOf(e.args[0]);
+            if (r) out.writes.push({ root: r, how: `${e.callee}(…)`, range: rangeOf(file, n), pos });
+            return;
+          }
+          if (last === "new" && /NonNull::new$/.test(e.callee) && e.args[0]) {
+            const r = rootOf(e.args[0]);
+            if (r) out.nullChecks.push({ root: r, range: rangeOf(file, n), pos });
+          }
+          return;
+        }
+        if (e.k === "call" && e.recv) {
+          const m = e.callee;
+          if (m === "is_null" || m === "as_ref" || m === "as_mut" || m === "is_some" || m === "is_none") {
+            const r = rootOf(e.recv);
+            if (r) out.nullChecks.push({ root: r, range: rangeOf(file, n), pos });
+          } else if (m === "write" || m === "write_unaligned" || m === "write_volatile" || m === "write_bytes" || m === "replace" || m === "swap") {
+            const r = rootOf(e.recv);
+            if (r) out.writes.push({ root: r, how: `.${m}(…)`, range: rangeOf(file, n), pos });
+          } else if (m === "read" || m === "read_unaligned" || m === "read_volatile") {
+            const r = rootOf(e.recv);
+            if (r) out.derefs.push({ root: r, range: rangeOf(file, n), pos });
+          } else if ((m === "copy_to" || m === "copy_to_nonoverlapping" || m === "copy_from" || m === "copy_from_nonoverlapping") && e.args.length === 2) {
+            const to = m.startsWith("copy_to");
+            const src = to ? e.recv : e.args[0]!;
+            const dst = to ? e.args[0]! : e.recv;
+            const cnt = n.childForFieldName("arguments")?.namedChildren.filter((a) => !a.type.endsWith("comment"))[1];
+            const c: RustBufferFacts["copies"][number] = { callee: m, src, dst, count: e.args[1]!, countText: cnt?.text ?? "", range: rangeOf(file, n), pos };
+            const sr = rootOf(src); if (sr) c.srcRoot = sr;
+            const dr = rootOf(dst); if (dr) c.dstRoot = dr;
+            out.copies.push(c);
+          }
+        }
+        return;
+      }
+      case "binary_expression": {
+        const op = n.childForFieldName("operator")?.text ?? n.child(1)?.text;
+        if (op === "==" || op === "!=") {
+          const l = n.childForFieldName("left");
+          const r = n.childForFieldName("right");
+          const isNull = (x: Node | null) => !!x && /(^|::)null(_mut)?\s*(::<[^>]*>)?\s*\(\s*\)$|^0\s+as\s+\*/.test(x.text);
+          const other = isNull(r) ? l : isNull(l) ? r : null;
+          if (other) {
+            const root = rootOf(rustExpr(other));
+            if (root) out.nullChecks.push({ root, range: rangeOf(file, n), pos });
+          }
+        }
+        return;
+      }
+      case "assignment_expression":
+      case "compound_assignment_expr": {
+        const l = n.childForFieldName("left");
+        if (l?.type === "unary_expression" && l.child(0)?.text === "*") {
+          const r = rootOf(rustExpr(l.namedChild(0)));
+          if (r) out.writes.push({ root: r, how: `*${l.namedChild(0)?.text ?? "p"} = …`, range: rangeOf(file, n), pos });
+        } else if (l?.type === "index_expression") {
+          // writes into a slice are checked through the slice's creation
+        }
+        return;
+      }
+      case "unary_expression": {
+        if (n.child(0)?.text === "*") {
+          const r = rootOf(rustExpr(n.namedChild(0)));
+          if (r) out.derefs.push({ root: r, range: rangeOf(file, n), pos });
+        }
+        return;
+      }
+    }
+  }
+
+  fn.body = fn.body ?? {};
+  fn.body.buffers = out;
+}
+
+rustExtractors.fnBody.push((fnNode, fn, facts) => {
+  try {
+    extractRustBody(fnNode, fn, facts);
+  } catch (e) {
+    facts.notices.push({ rule: "internal-error", severity: "warning", message: `ferrule could not read the body of \`${fn.name}\` in ${facts.file}: ${(e as Error).message}`, range: fn.nameRange });
   }
 });
 
