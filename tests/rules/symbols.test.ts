@@ -24,3 +24,26 @@ describe("symbols family", () => {
     expect(lines).toEqual([]);
   });
 });
+
+describe("export macros", () => {
+  test("QUAKE_API / QUAKE_CALL defined in the header are blanked; static inline helpers are not symbols", async () => {
+    const { lines, ws } = await checkDir("rules/symbols/good-macros");
+    expect(lines).toEqual([]);
+    const h = [...ws.model().files.values()].find((f) => f.file.endsWith("quake.h"))!;
+    const win = h.fns.find((f) => f.name === "quake_window")!;
+    expect(win.ret).toEqual({ k: "ptr", to: { k: "scalar", s: "float" }, mut: false, via: "raw" });
+    expect(win.nameRange.line + 1).toBe(15); // positions are unchanged by the blanking
+  });
+  test("a macro defined in another file needs strip_macros", async () => {
+    const { analyze } = await import("../helpers/analyze.js");
+    const files = {
+      "api.h": "#include \"export.h\"\nRADIO_API int radio_tune(double hz);\n",
+      "export.h": "#define RADIO_API __attribute__((visibility(\"default\")))\n",
+      "radio.rs": "#[no_mangle]\npub extern \"C\" fn radio_tune(hz: f64) -> i32 { 0 }\n",
+    };
+    const without = await analyze(files);
+    expect(without.findings.map((f) => `${f.rule}@${f.range.file}:${f.range.line + 1}`)).toEqual(["unknown-macro@/ws/api.h:2"]);
+    const withCfg = await analyze(files, { stripMacros: ["RADIO_API"] });
+    expect(withCfg.findings.map((f) => f.rule)).toEqual([]);
+  });
+});

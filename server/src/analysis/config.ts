@@ -13,6 +13,8 @@ export interface FerruleConfig {
   includePaths: string[];
   exclude: string[];
   maxFileBytes: number;
+  /** C/C++ export/attribute macros to blank before reading (`SONAR_API int f(void);`). */
+  stripMacros: string[];
   /** Per-rule severity override; "off" disables the rule. */
   severity: Record<string, Severity | "off">;
   /** Per-family settings (e.g. port-declaration patterns), passed to the model. */
@@ -24,6 +26,7 @@ export const DEFAULTS: FerruleConfig = {
   includePaths: [],
   exclude: [],
   maxFileBytes: 2_000_000,
+  stripMacros: [],
   severity: {},
   families: {},
 };
@@ -64,6 +67,10 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
         break;
       case "exclude":
         cfg.exclude = strList(v, file, k);
+        break;
+      case "strip_macros":
+      case "stripMacros":
+        cfg.stripMacros = strList(v, file, k);
         break;
       case "max_file_bytes":
       case "maxFileBytes":

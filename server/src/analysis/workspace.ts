@@ -5,7 +5,7 @@
 import * as fs from "node:fs";
 import * as path from "node:path";
 import { createHash } from "node:crypto";
-import { extractFile, initParsers } from "../extract/index.js";
+import { extractFile, initParsers, type ExtractOptions } from "../extract/index.js";
 import { langOf } from "../parse/parser.js";
 import { Model } from "../model/boundary.js";
 import type { FileFacts } from "../model/types.js";
@@ -112,11 +112,11 @@ export class Workspace {
   }
 
   /** Sets a file's text; returns false when the content did not change (nothing to redo). */
-  update(file: string, text: string): boolean {
+  update(file: string, text: string, opts: Omit<ExtractOptions, "maxFileBytes"> = {}): boolean {
     const hash = createHash("sha1").update(text).digest("hex");
     const old = this.entries.get(file);
     if (old && old.hash === hash) return false;
-    this.entries.set(file, { hash, facts: extractFile(file, text, { maxFileBytes: this.config.maxFileBytes }) });
+    this.entries.set(file, { hash, facts: extractFile(file, text, { ...opts, maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros }) });
     this.invalidate();
     return true;
   }
@@ -182,8 +182,25 @@ export class Workspace {
   /** All findings, with severity overrides and suppressions applied, sorted by place. */
   check(): Finding[] {
     if (this.cachedFindings) return this.cachedFindings;
-    const model = this.model();
-    let out = [...this.walkNotices, ...runRules(model)];
+    this.cachedFindings = this.finish([...this.walkNotices, ...runRules(this.model())], this.model());
+    return this.cachedFindings;
+  }
+
+  /** Runs the rules over a model of only these files (the language server's scoped re-check:
+   * an edit re-checks the boundary items it can affect; the caller picks the files). */
+  checkSubset(files: Iterable<string>): { findings: Finding[]; model: Model } {
+    const facts: FileFacts[] = [];
+    for (const f of files) {
+      const e = this.entries.get(f);
+      if (e) facts.push(e.facts);
+    }
+    const model = new Model(facts, { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families });
+    return { findings: this.finish(runRules(model), model), model };
+  }
+
+  /** Severity overrides, suppressions, de-duplication and ordering. */
+  private finish(raw: Finding[], model: Model): Finding[] {
+    let out = raw;
     out = out.flatMap((f) => {
       const s = this.config.severity[f.rule];
       if (s === "off") return [];
@@ -192,7 +209,6 @@ export class Workspace {
     out = applySuppressions(out, model);
     out = dedupe(out);
     out.sort((a, b) => a.range.file.localeCompare(b.range.file) || a.range.line - b.range.line || a.range.col - b.range.col || a.rule.localeCompare(b.rule));
-    this.cachedFindings = out;
     return out;
   }
 }

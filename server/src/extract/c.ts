@@ -65,8 +65,19 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
         if (s) decl.repr.int = s;
       }
     } else if (body) {
+      let pendingAlign: number | undefined;
       for (const f of body.namedChildren) {
+        if (f.type === "ERROR") {
+          // The C++ grammar reads `_Alignas(8) long x;` as ERROR(`_Alignas` `8`) + the field.
+          const kids = f.namedChildren;
+          const kw = kids.find((c) => c.text === "_Alignas" || c.text === "alignas");
+          const num = kids.find((c) => c.type === "number_literal");
+          pendingAlign = kw && num ? evalConst(num) ?? undefined : undefined;
+          continue;
+        }
         if (f.type !== "field_declaration") continue;
+        const carried = pendingAlign;
+        pendingAlign = undefined;
         const spec2 = f.childForFieldName("type");
         const innerCtx: DeclCtx = { ...ctx, onInlineAggregate: (s) => addAggregate(s) };
         const cx = complexBase(f, typeFromSpecifier(spec2, innerCtx));
@@ -75,6 +86,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
         const bf = f.namedChildren.find((c) => c.type === "bitfield_clause");
         if (bf) bits = evalConst(bf.namedChild(0), ctx.consts) ?? undefined;
         const fattrs = f.namedChildren.filter((c) => c.type === "attribute_specifier" || c.type === "alignas_qualifier" || c.type === "alignas_specifier").map((c) => c.text);
+        if (carried) fattrs.push(`_Alignas(${carried})`);
         const quirk = cFieldQuirk(f);
         if (quirk) {
           // `float _Complex z;` / `_Alignas(8) char d;`: spellings this C grammar version does not
@@ -116,7 +128,19 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
   const ctxWithInline: DeclCtx = { ...ctx, onInlineAggregate: (s) => addAggregate(s) };
 
   const handleFunction = (node: Node, spec: Node | null, declarator: Node, isDef: boolean, cLinkage: boolean) => {
-    const base = complexBase(node, typeFromSpecifier(spec, ctxWithInline)).base;
+    let base = complexBase(node, typeFromSpecifier(spec, ctxWithInline)).base;
+    // `RADIO_API int f(void);` with RADIO_API defined elsewhere: the macro reads as the type and
+    // the real type lands in an ERROR node. Do not guess; say what to configure.
+    const err = node.namedChildren.find((c) => c.type === "ERROR" && spec && c.startIndex >= spec.endIndex && c.endIndex <= declarator.startIndex);
+    if (spec?.type === "type_identifier" && err) {
+      base = { k: "unknown", text: `${spec.text} ${err.text}` };
+      facts.notices.push({
+        rule: "unknown-macro",
+        severity: "info",
+        message: `\`${spec.text}\` looks like a macro ferrule cannot expand; the return type of this declaration is not checked. If it is an export or attribute macro, add it to \`strip_macros\` in .ferrule.toml`,
+        range: rangeOf(file, spec),
+      });
+    }
     const d = applyDeclarator(declarator, base, hasConstChild(node), ctxWithInline);
     if (!d.fn || d.type.k !== "fn" || !d.name) return;
     const nameNode = d.nameNode!;
@@ -140,6 +164,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
       file,
       cLinkage,
       inHeader,
+      isStatic: node.namedChildren.some((c) => c.type === "storage_class_specifier" && c.text === "static"),
       doc: docAbove(node, []) || trailingComment(node),
       attrs,
     };

@@ -6,6 +6,7 @@ import type { FileFacts, Lang } from "../model/types.js";
 import { emptyFacts } from "./common.js";
 import { extractC } from "./c.js";
 import { extractRust } from "./rust.js";
+import { blankAttributeMacros } from "./macros.js";
 import "./plugins/index.js"; // rule families' body and call-site extractors register themselves
 import type { Suppression } from "../model/types.js";
 
@@ -62,6 +63,8 @@ function countErrors(t: Tree): number {
 
 export interface ExtractOptions {
   maxFileBytes?: number;
+  /** Attribute/export macro names to blank before reading C/C++ (setting `strip_macros`). */
+  stripMacros?: readonly string[];
   /** A previous tree of this file, already adjusted with tree.edit(...), for incremental re-parsing
    * (used by the language server). Ignored when its grammar differs from the one chosen now. */
   oldTree?: Tree;
@@ -101,14 +104,23 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     }
     let useLang: Lang = lang;
     tree = parseText(lang, text, reusable(opts.oldTree, lang));
-    if (lang === "c" && isHeader(file) && tree.rootNode.hasError) {
-      // A .h file may hold C++; keep whichever grammar reads it with fewer errors.
+    if (lang === "c" && tree.rootNode.hasError) {
+      // A .h file may hold C++; keep whichever grammar reads it with fewer errors. A .c file stays
+      // C, but the bundled C grammar misreads some C11/GCC spellings the C++ grammar reads
+      // (`union __attribute__((aligned(16))) u {…}`, `_Alignas(8) long x;`): use the C++ tree
+      // when it has fewer errors.
       const alt = parseText("cpp", text, reusable(opts.oldTree, "cpp"));
       if (countErrors(alt) < countErrors(tree)) {
         tree.delete();
         tree = alt;
-        useLang = "cpp";
+        useLang = isHeader(file) ? "cpp" : "c";
       } else alt.delete();
+    }
+    const blanked = blankAttributeMacros(tree, text, opts.stripMacros);
+    if (blanked !== undefined) {
+      const treeLang: Lang = tree.getLanguage() === getLanguage("cpp") ? "cpp" : "c";
+      tree.delete();
+      tree = parseText(treeLang, blanked);
     }
     const facts = extractC(file, tree, useLang);
     facts.lang = lang === "c" && useLang === "cpp" ? "cpp" : lang;

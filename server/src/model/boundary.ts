@@ -40,7 +40,7 @@ export class Model {
       const side: Side = f.lang === "rust" ? "rust" : "c";
       for (const fn of f.fns) {
         this.fnIds.set(fn.id, fn);
-        if ((fn as FnDecl & { internal?: boolean }).internal) continue;
+        if ((fn as FnDecl & { internal?: boolean }).internal || fn.isStatic) continue;
         if (fn.lang === "rust" && fn.role === "export" && !fn.noMangle && !fn.isExtern) continue;
         let g = this.symbols.get(fn.symbol);
         if (!g) this.symbols.set(fn.symbol, (g = { symbol: fn.symbol, rust: [], c: [] }));

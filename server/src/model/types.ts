@@ -67,6 +67,8 @@ export interface FnDecl {
   cLinkage?: boolean;
   /** C/C++: the file is a header (.h/.hpp). */
   inHeader?: boolean;
+  /** C/C++: `static` (internal linkage): not a symbol the linker can match. */
+  isStatic?: boolean;
   /** Doc comment text directly above the item (without comment markers). */
   doc: string;
   /** Raw attribute texts (Rust) or GCC __attribute__ texts (C). */

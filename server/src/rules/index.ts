@@ -24,6 +24,13 @@ export const FILE_SKIPPED: RuleMeta = {
   why: "Findings that involve it are missing from this run.",
 };
 
+export const UNKNOWN_MACRO: RuleMeta = {
+  id: "unknown-macro",
+  severity: "info",
+  summary: "A declaration uses a macro ferrule cannot expand where a type belongs (typically an export macro defined in another header).",
+  why: "The affected type is not checked; list export/attribute macros in `strip_macros` so ferrule reads the declaration.",
+};
+
 export const FAMILIES: RuleFamily[] = [
   symbolsFamily, signaturesFamily, ffiSafetyFamily, linkageFamily, layoutFamily, buffersFamily, ownershipFamily,
 ];
@@ -34,7 +41,7 @@ export function registerFamily(f: RuleFamily): void {
 }
 
 export function allRules(): RuleMeta[] {
-  return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED];
+  return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO];
 }
 
 export function runFamily(f: RuleFamily, model: Model): Finding[] {
