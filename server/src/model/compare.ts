@@ -177,7 +177,7 @@ function comparePointee(model: Model, rt: AbiType, ct: AbiType, triple: Triple, 
   const lr = layoutOf(rt, { model, side: "rust", triple });
   const lc = layoutOf(ct, { model, side: "c", triple });
   const sizes = !lr.unknown && !lc.unknown ? ` (${lr.size}-byte items vs ${lc.size}-byte items)` : "";
-  return { kind: d.kind === "depth" ? "depth" : "item", detail: `points to \`${describeRust(rt)}\` in Rust but \`${describeC(ct)}\` in C${sizes}` };
+  return { kind: "item", detail: `points to \`${describeRust(rt)}\` in Rust but \`${describeC(ct)}\` in C${sizes}` };
 }
 
 function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple): TypeDiff | null {
