@@ -1,2 +1,793 @@
-// Extractor plugin for the "ownership" rule family (placeholder: filled in by its issue).
-export {};
+// Extractor plugin of the "ownership" family.
+//
+// Rust (every function item with a body, exported or helper): what the body turns into a raw
+// pointer (Box::into_raw, Box::leak, Arc::into_raw, CString::into_raw, mem::forget,
+// ManuallyDrop::new), what it takes back (Box::from_raw, Arc::from_raw, CString::from_raw,
+// Vec::from_raw_parts, ptr::drop_in_place, a Box<T> parameter), what it borrows (&*p, &mut *p,
+// p.as_ref(), p.as_mut()), null checks, panic sites, catch_unwind regions and calls to other
+// functions (so rules can follow helpers inside the crate). Stored in `fn.body.ownership`.
+//
+// C/C++ (once per file): every function definition becomes a flow of events in source order
+// (calls with their arguments, assignments, delete expressions, uses of names, returns) and every
+// C++ class its fields (raw handle pointers, std::unique_ptr with its deleter) and special
+// members (constructor, destructor, copy/move constructor and assignment, and whether each is
+// deleted, defaulted or user-written). Stored in `facts.classes` and `facts.extra.ownership`.
+//
+// Only plain data is stored; syntax nodes never outlive the call.
+
+import type { Node } from "../../parse/parser.js";
+import type { FileFacts, FnDecl, Range } from "../../model/types.js";
+import type {
+  CArg, CClass, CEvent, CField, CFlow, COwnFacts, CRef, MemberKind, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl,
+} from "../../model/ownership.js";
+import { rangeOf, walk } from "../common.js";
+import { cFileExtractors, rustExtractors } from "../hooks.js";
+
+// ---------------------------------------------------------------- Rust
+
+const INT_PRIMS = new Set(["i8", "u8", "i16", "u16", "i32", "u32", "i64", "u64", "i128", "u128", "isize", "usize",
+  "c_int", "c_uint", "c_long", "c_ulong", "c_short", "c_ushort", "c_longlong", "c_ulonglong", "size_t", "c_char", "c_uchar", "c_schar"]);
+
+const PANIC_MACROS: Record<string, RustOwnFacts["panics"][number]["kind"]> = {
+  panic: "panic", unreachable: "unreachable", todo: "todo", unimplemented: "todo",
+  assert: "assert", assert_eq: "assert", assert_ne: "assert",
+};
+
+function lastSeg(t: string): string {
+  const s = t.replace(/\s+/g, "").replace(/::<.*>$/, "").split("::");
+  return s[s.length - 1] ?? t;
+}
+
+/** `Box::<T>::from_raw` → { head: "Box", name: "from_raw", turbofish: "T" } */
+function pathParts(fnNode: Node): { head: string; name: string; turbofish?: string } | undefined {
+  if (fnNode.type === "generic_function") {
+    const inner = fnNode.childForFieldName("function");
+    const ta = fnNode.childForFieldName("type_arguments")?.namedChild(0)?.text;
+    const p = inner ? pathParts(inner) : undefined;
+    return p ? { ...p, turbofish: p.turbofish ?? ta } : undefined;
+  }
+  if (fnNode.type !== "scoped_identifier") return undefined;
+  const name = fnNode.childForFieldName("name")?.text ?? "";
+  const path = fnNode.childForFieldName("path");
+  if (!path) return { head: "", name };
+  if (path.type === "generic_type") {
+    const head = lastSeg(path.childForFieldName("type")?.text ?? "");
+    const ta = path.childForFieldName("type_arguments")?.namedChild(0)?.text;
+    return { head, name, turbofish: ta };
+  }
+  return { head: lastSeg(path.text), name };
+}
+
+function pointeeName(typeText: string | undefined): string | undefined {
+  if (!typeText) return undefined;
+  // `*mut Det`, `*const Det`, `Det` — the type's own text, taken from the tree by the caller.
+  const t = typeText.replace(/^\*\s*(mut|const)\s+/, "").trim();
+  return lastSeg(t);
+}
+
+function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
+  const body = fnNode.childForFieldName("body");
+  if (!body || !fn.body) return;
+  const file = facts.file;
+  const own: RustOwnFacts = {
+    hasSelf: !!fnNode.childForFieldName("parameters")?.namedChildren.some((c) => c.type === "self_parameter"),
+    bodyRange: rangeOf(file, body),
+    produces: [], releases: [], borrows: [], nullChecks: [], reLeaks: [], panics: [], calls: [], catchUnwind: false,
+  };
+  const intNames = new Set<string>();
+  for (const p of fn.params) {
+    if (p.type.k === "scalar" && !["f32", "f64", "float", "double", "bool"].includes(p.type.s)) intNames.add(p.name);
+    // A Box<T> parameter owns its pointee: it is released when the function returns.
+    if (p.type.k === "ptr" && p.type.via === "box") {
+      const inner = p.type.to.k === "named" ? p.type.to.name : undefined;
+      own.releases.push({ how: "box", arg: { ident: p.name, text: p.name }, inner, range: p.range, byParam: true, nullableParam: !!p.type.nullable });
+    }
+  }
+  const aliases = new Map<string, RustArg>();
+  const protectedRanges: Range[] = [];
+  const isProtected = (n: Node) => protectedRanges.some((r) =>
+    (n.startPosition.row > r.line || (n.startPosition.row === r.line && n.startPosition.column >= r.col)) &&
+    (n.startPosition.row < r.endLine || (n.startPosition.row === r.endLine && n.startPosition.column < r.endCol)));
+
+  const argRef = (n: Node | null | undefined, depth = 0): RustArg => {
+    if (!n || depth > 20) return { text: n?.text ?? "" };
+    switch (n.type) {
+      case "identifier": {
+        const a = aliases.get(n.text);
+        return a ? { ...a, text: n.text } : { ident: n.text, text: n.text };
+      }
+      case "parenthesized_expression":
+        return argRef(n.namedChild(0), depth + 1);
+      case "unsafe_block":
+      case "block": {
+        const last = n.namedChildren.filter((c) => !c.type.endsWith("comment")).pop();
+        if (n.type === "unsafe_block") return argRef(n.namedChildren.find((c) => c.type === "block"), depth + 1);
+        return argRef(last, depth + 1);
+      }
+      case "type_cast_expression": {
+        const inner = argRef(n.childForFieldName("value"), depth + 1);
+        const tt = n.childForFieldName("type");
+        const pt = tt?.type === "pointer_type" ? tt.childForFieldName("type")?.text : undefined;
+        return { ...inner, cast: pt ? lastSeg(pt) : inner.cast, text: n.text };
+      }
+      case "call_expression": {
+        // p.cast::<T>() / p.cast()
+        const f = n.childForFieldName("function");
+        let fe = f;
+        let ta: string | undefined;
+        if (f?.type === "generic_function") {
+          fe = f.childForFieldName("function");
+          ta = f.childForFieldName("type_arguments")?.namedChild(0)?.text;
+        }
+        if (fe?.type === "field_expression" && ["cast", "cast_mut", "cast_const", "as_ptr"].includes(fe.childForFieldName("field")?.text ?? "")) {
+          const inner = argRef(fe.childForFieldName("value"), depth + 1);
+          return { ...inner, cast: ta ? lastSeg(ta) : inner.cast, text: n.text };
+        }
+        return { text: n.text };
+      }
+    }
+    return { text: n.text };
+  };
+
+  /** The `let` binding a value flows into (through unsafe blocks and parentheses). */
+  const bindingOf = (n: Node): { name?: string; typeText?: string } => {
+    let p: Node | null = n.parent;
+    let child: Node = n;
+    for (let i = 0; p && i < 6; i++) {
+      if (p.type === "let_declaration") {
+        if (p.childForFieldName("value")?.id !== child.id) return {};
+        const pat = p.childForFieldName("pattern");
+        const name = pat?.type === "identifier" ? pat.text : pat?.type === "mut_pattern" ? pat.namedChild(0)?.text : undefined;
+        return { name, typeText: p.childForFieldName("type")?.text };
+      }
+      if (!["unsafe_block", "block", "parenthesized_expression"].includes(p.type)) return {};
+      child = p;
+      p = p.parent;
+    }
+    return {};
+  };
+
+  const innerOfNew = (arg: Node | null | undefined): string | undefined => {
+    // Box::new(Det { … }) / Box::new(Det::new(…)) / Box::<Det>::new(…)
+    if (!arg || arg.type !== "call_expression") return undefined;
+    const pp = pathParts(arg.childForFieldName("function")!);
+    if (!pp || pp.name !== "new") return undefined;
+    if (pp.turbofish) return lastSeg(pp.turbofish);
+    const a0 = arg.childForFieldName("arguments")?.namedChildren[0];
+    if (a0?.type === "struct_expression") return lastSeg(a0.childForFieldName("name")?.text ?? "");
+    if (a0?.type === "call_expression") {
+      const p2 = pathParts(a0.childForFieldName("function")!);
+      if (p2 && /^[A-Z]/.test(p2.head)) return p2.head;
+    }
+    return undefined;
+  };
+
+  walk(body, (n) => {
+    if (n.type === "function_item" || n.type === "impl_item" || n.type === "mod_item") return false;
+    switch (n.type) {
+      case "let_declaration": {
+        const pat = n.childForFieldName("pattern");
+        const val = n.childForFieldName("value");
+        const tt = n.childForFieldName("type");
+        const name = pat?.type === "identifier" ? pat.text : pat?.type === "mut_pattern" ? pat.namedChild(0)?.text : undefined;
+        if (name && tt?.type === "primitive_type" && INT_PRIMS.has(tt.text)) intNames.add(name);
+        if (name && tt && INT_PRIMS.has(lastSeg(tt.text))) intNames.add(name);
+        if (name && val && (val.type === "identifier" || val.type === "type_cast_expression" || val.type === "call_expression" || val.type === "parenthesized_expression")) {
+          const r = argRef(val);
+          if (r.ident && r.ident !== name) aliases.set(name, { ident: r.ident, cast: r.cast ?? (tt?.type === "pointer_type" ? lastSeg(tt.childForFieldName("type")?.text ?? "") : undefined), text: val.text });
+          if (val.type === "type_cast_expression" && INT_PRIMS.has(lastSeg(val.childForFieldName("type")?.text ?? ""))) intNames.add(name);
+        }
+        return;
+      }
+      case "reference_expression": {
+        const v = n.childForFieldName("value");
+        if (v?.type === "unary_expression" && v.child(0)?.text === "*") {
+          const r = argRef(v.namedChild(0));
+          if (r.ident) own.borrows.push({ ident: r.ident, mut: n.children.some((c) => c.type === "mutable_specifier"), range: rangeOf(file, n) });
+        }
+        return;
+      }
+      case "macro_invocation": {
+        const mac = lastSeg(n.childForFieldName("macro")?.text ?? "");
+        const kind = PANIC_MACROS[mac];
+        if (kind) own.panics.push({ kind, text: `${mac}!`, range: rangeOf(file, n), protected: isProtected(n) });
+        return false; // token trees are not parsed
+      }
+      case "index_expression": {
+        own.panics.push({ kind: "index", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
+        return;
+      }
+      case "binary_expression":
+      case "compound_assignment_expr": {
+        const op = (n.childForFieldName("operator") ?? n.child(1))?.text ?? "";
+        const l = n.childForFieldName("left");
+        const r = n.childForFieldName("right");
+        const isInt = (x: Node | null) => !!x && ((x.type === "identifier" && intNames.has(x.text)) ||
+          (x.type === "type_cast_expression" && INT_PRIMS.has(lastSeg(x.childForFieldName("type")?.text ?? ""))));
+        const isFloatLit = (x: Node | null) => x?.type === "float_literal";
+        const base = op.replace(/=$/, "");
+        if (["+", "-", "*"].includes(base) && (isInt(l) || isInt(r)) && !isFloatLit(l) && !isFloatLit(r)) {
+          own.panics.push({ kind: "overflow", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
+        } else if (["/", "%"].includes(base) && isInt(r)) {
+          own.panics.push({ kind: "division", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
+        }
+        if ((op === "==" || op === "!=") && l && r) {
+          const nullish = (x: Node) => x.type === "call_expression" && /(^|::)null(_mut)?$/.test(x.childForFieldName("function")?.text.replace(/\s+/g, "").replace(/::<.*>$/, "") ?? "");
+          const side = nullish(r) ? l : nullish(l) ? r : null;
+          if (side) {
+            const a = argRef(side);
+            if (a.ident) own.nullChecks.push({ ident: a.ident, range: rangeOf(file, n) });
+          }
+        }
+        return;
+      }
+      case "call_expression": {
+        readRustCall(n);
+        return;
+      }
+    }
+    return;
+  });
+
+  function readRustCall(n: Node): void {
+    const f = n.childForFieldName("function");
+    const args = n.childForFieldName("arguments")?.namedChildren.filter((c) => !c.type.endsWith("comment")) ?? [];
+    if (!f) return;
+    const range = rangeOf(file, n);
+    const prot = isProtected(n);
+    let fe = f;
+    if (f.type === "generic_function") fe = f.childForFieldName("function") ?? f;
+    if (fe.type === "field_expression") {
+      const method = fe.childForFieldName("field")?.text ?? "";
+      const recv = fe.childForFieldName("value");
+      const r = argRef(recv);
+      switch (method) {
+        case "unwrap": case "expect": case "borrow_mut":
+          own.panics.push({ kind: method, text: `.${method}()`, range, protected: prot });
+          return;
+        case "is_null":
+          if (r.ident) own.nullChecks.push({ ident: r.ident, range });
+          return;
+        case "as_ref": case "as_mut":
+          if (r.ident) {
+            own.borrows.push({ ident: r.ident, mut: method === "as_mut", range });
+            own.nullChecks.push({ ident: r.ident, range });
+          }
+          return;
+        case "into_raw": {
+          // CString::new(…)?.into_raw() — the method form exists on CString only.
+          own.produces.push({ how: "cstring", inner: "CString", range, protected: prot });
+          if (r.ident) own.reLeaks.push({ ident: r.ident, range });
+          return;
+        }
+        case "into_raw_parts":
+          own.produces.push({ how: "vec", range, protected: prot });
+          if (r.ident) own.reLeaks.push({ ident: r.ident, range });
+          return;
+        case "drop_in_place":
+          own.releases.push({ how: "drop_in_place", arg: r, range, calleeRange: rangeOf(file, fe) });
+          return;
+      }
+      own.calls.push({ callee: method, method: true, args: [r, ...args.map((a) => argRef(a))], range, protected: prot });
+      return;
+    }
+    const ftext = f.text.replace(/\s+/g, "");
+    if (/(^|::)catch_unwind$/.test(ftext)) {
+      own.catchUnwind = true;
+      const a = n.childForFieldName("arguments");
+      if (a) protectedRanges.push(rangeOf(file, a));
+      return;
+    }
+    const pp = pathParts(f);
+    if (pp) {
+      const { head, name, turbofish } = pp;
+      const a0 = args[0];
+      const b = bindingOf(n);
+      const bindInner = b.typeText && /^(Box|Arc|Rc)\s*</.test(b.typeText) ? lastSeg(b.typeText.replace(/^\w+\s*<\s*/, "").replace(/>\s*$/, "")) : undefined;
+      if (["Box", "Arc", "Rc"].includes(head) && (name === "into_raw" || name === "leak")) {
+        const how = head.toLowerCase() as OwnHow;
+        own.produces.push({ how, inner: turbofish ? lastSeg(turbofish) : innerOfNew(a0), range, protected: prot });
+        const r = argRef(a0);
+        if (r.ident) own.reLeaks.push({ ident: r.ident, range });
+        return;
+      }
+      if (head === "CString" && name === "into_raw") {
+        own.produces.push({ how: "cstring", inner: "CString", range, protected: prot });
+        const r = argRef(a0);
+        if (r.ident) own.reLeaks.push({ ident: r.ident, range });
+        return;
+      }
+      if (head === "ManuallyDrop" && name === "new") {
+        own.produces.push({ how: "manuallydrop", range, protected: prot });
+        const r = argRef(a0);
+        if (r.ident) own.reLeaks.push({ ident: r.ident, range });
+        return;
+      }
+      if (head === "mem" && name === "forget") {
+        const r = argRef(a0);
+        if (r.ident) own.reLeaks.push({ ident: r.ident, range });
+        own.produces.push({ how: "forget", range, protected: prot });
+        return;
+      }
+      if (head === "Vec" && name === "into_raw_parts") {
+        own.produces.push({ how: "vec", range, protected: prot });
+        return;
+      }
+      if (["Box", "Arc", "Rc", "CString"].includes(head) && name === "from_raw") {
+        own.releases.push({
+          how: head === "CString" ? "cstring" : (head.toLowerCase() as OwnHow),
+          arg: argRef(a0), inner: turbofish ? lastSeg(turbofish) : bindInner ?? (head === "CString" ? "CString" : undefined),
+          range, calleeRange: rangeOf(file, f), binding: b.name,
+        });
+        return;
+      }
+      if (head === "Vec" && name === "from_raw_parts") {
+        own.releases.push({ how: "vec", arg: argRef(a0), inner: turbofish, range, calleeRange: rangeOf(file, f), binding: b.name });
+        return;
+      }
+      if (head === "ptr" && name === "drop_in_place") {
+        own.releases.push({ how: "drop_in_place", arg: argRef(a0), range, calleeRange: rangeOf(file, f) });
+        return;
+      }
+      if (head === "NonNull" && name === "new") {
+        const r = argRef(a0);
+        if (r.ident) own.nullChecks.push({ ident: r.ident, range });
+        return;
+      }
+      if (["forget", "leak"].includes(name) && (head === "mem" || head === "Box")) return;
+    }
+    if (f.type === "identifier" && f.text === "forget") {
+      const r = argRef(args[0]);
+      if (r.ident) own.reLeaks.push({ ident: r.ident, range });
+      own.produces.push({ how: "forget", range, protected: prot });
+      return;
+    }
+    if (f.type === "identifier" && f.text === "drop_in_place") {
+      own.releases.push({ how: "drop_in_place", arg: argRef(args[0]), range, calleeRange: rangeOf(file, f) });
+      return;
+    }
+    if (f.type === "identifier" || f.type === "scoped_identifier" || f.type === "generic_function") {
+      own.calls.push({ callee: lastSeg(pp?.name ?? f.text), method: false, args: args.map((a) => argRef(a)), range, protected: prot });
+    }
+  }
+
+  fn.body.ownership = own;
+}
+
+// ---------------------------------------------------------------- C / C++
+
+const NULL_TEXT = new Set(["nullptr", "NULL", "0", "nullptr_t{}"]);
+
+function declName(d: Node | null | undefined, depth = 0): { name?: string; node?: Node; isPtr: boolean; isRef: boolean; isRvalue: boolean } {
+  let isPtr = false;
+  let isRef = false;
+  let isRvalue = false;
+  let n: Node | null | undefined = d;
+  for (let i = 0; n && i < 20 + depth; i++) {
+    switch (n.type) {
+      case "identifier": case "field_identifier": case "operator_name": case "destructor_name": case "qualified_identifier":
+        return { name: n.text, node: n, isPtr, isRef, isRvalue };
+      case "pointer_declarator": case "abstract_pointer_declarator": isPtr = true; break;
+      case "reference_declarator": case "abstract_reference_declarator":
+        isRef = true;
+        if (n.children.some((c) => c.type === "&&")) isRvalue = true;
+        break;
+    }
+    const next: Node | null | undefined = n.childForFieldName("declarator") ?? n.namedChildren.find((c) => /declarator$|identifier$|^operator_name$|^destructor_name$/.test(c.type));
+    if (!next) return { isPtr, isRef, isRvalue };
+    n = next;
+  }
+  return { isPtr, isRef, isRvalue };
+}
+
+function typeHead(t: Node | null | undefined): string {
+  if (!t) return "";
+  if (t.type === "qualified_identifier") return typeHead(t.childForFieldName("name"));
+  if (t.type === "template_type") return t.childForFieldName("name")?.text ?? "";
+  return t.text.replace(/^(struct|class|const)\s+/, "");
+}
+
+/** std::unique_ptr<T, D> from a type node; undefined for other types. */
+function uniquePtrOf(t: Node | null | undefined, file: string, name: string, range: Range): UniquePtrDecl | undefined {
+  let tt = t;
+  if (tt?.type === "qualified_identifier") tt = tt.childForFieldName("name");
+  if (tt?.type !== "template_type" || tt.childForFieldName("name")?.text !== "unique_ptr") return undefined;
+  const args = tt.childForFieldName("arguments")?.namedChildren ?? [];
+  const pointee = typeHead(args[0]?.childForFieldName("type") ?? args[0]);
+  let deleter: UniquePtrDecl["deleter"] = { k: "default" };
+  const d = args[1];
+  if (d) {
+    const dt = d.childForFieldName("type") ?? d;
+    if (dt.type === "decltype") {
+      let e = dt.namedChild(0);
+      while (e && (e.type === "pointer_expression" || e.type === "parenthesized_expression")) e = e.namedChild(e.namedChildCount - 1);
+      deleter = e ? { k: "fn", name: e.text.replace(/^::/, "") } : { k: "unknown", text: dt.text };
+    } else if (d.type === "type_descriptor" && d.childForFieldName("declarator")) {
+      deleter = { k: "unknown", text: d.text }; // a function-pointer type: the function comes with the initializer
+    } else {
+      deleter = { k: "functor", cls: typeHead(dt) };
+    }
+  }
+  return { name, pointee, deleter, range };
+}
+
+function stripCasts(n: Node | null | undefined): { node: Node | null | undefined; castTo?: string } {
+  let castTo: string | undefined;
+  let cur = n;
+  for (let i = 0; cur && i < 10; i++) {
+    if (cur.type === "parenthesized_expression") { cur = cur.namedChild(0); continue; }
+    if (cur.type === "cast_expression") {
+      castTo ??= typeHead(cur.childForFieldName("type")?.childForFieldName("type"));
+      cur = cur.childForFieldName("value");
+      continue;
+    }
+    if (cur.type === "call_expression") {
+      const f = cur.childForFieldName("function");
+      if (f?.type === "template_function" && /^(static_cast|reinterpret_cast|const_cast)$/.test(f.childForFieldName("name")?.text ?? "")) {
+        castTo ??= typeHead(f.childForFieldName("arguments")?.namedChild(0)?.childForFieldName("type"));
+        cur = cur.childForFieldName("arguments")?.namedChild(0);
+        continue;
+      }
+    }
+    break;
+  }
+  return { node: cur, castTo };
+}
+
+function refOf(n: Node | null | undefined): CRef | undefined {
+  if (!n) return undefined;
+  if (n.type === "identifier") return { name: n.text };
+  if (n.type === "field_expression") {
+    const obj = n.childForFieldName("argument");
+    const field = n.childForFieldName("field")?.text ?? "";
+    if (obj?.type === "this") return { name: field, this: true };
+    if (obj?.type === "identifier") return { name: field, of: obj.text };
+    if (obj?.type === "pointer_expression" && obj.namedChild(0)?.type === "this") return { name: field, this: true };
+  }
+  return undefined;
+}
+
+function calleeName(f: Node | null | undefined): string {
+  if (!f) return "";
+  if (f.type === "qualified_identifier") {
+    const nm = f.childForFieldName("name");
+    const scope = f.childForFieldName("scope")?.text ?? "";
+    if (scope === "std" || scope === "") return nm?.text ?? f.text;
+    return f.text;
+  }
+  if (f.type === "template_function") return f.childForFieldName("name")?.text ?? f.text;
+  return f.text.replace(/^::/, "");
+}
+
+function argOf(n: Node, file: string): CArg {
+  const { node, castTo } = stripCasts(n);
+  const a: CArg = { text: n.text, range: rangeOf(file, n) };
+  if (castTo) a.castTo = castTo;
+  if (!node) return a;
+  const r = refOf(node);
+  if (r) a.ref = r;
+  else if (node.type === "call_expression") {
+    const f = node.childForFieldName("function");
+    if (f?.type === "field_expression" && f.childForFieldName("field")?.text === "get") {
+      const rr = refOf(f.childForFieldName("argument"));
+      if (rr) { a.ref = rr; a.viaGet = true; }
+    } else a.call = calleeName(f);
+  } else if (node.type === "pointer_expression" && node.child(0)?.text === "&") {
+    // &sonar_fir_free
+    const inner = node.namedChild(0);
+    if (inner?.type === "identifier") a.call = undefined, a.ref = { name: inner.text };
+  }
+  return a;
+}
+
+function isNullNode(n: Node | null | undefined): boolean {
+  const s = stripCasts(n).node;
+  return !!s && (s.type === "null" || NULL_TEXT.has(s.text));
+}
+
+function memberKind(nameNode: Node | undefined, className: string | undefined, paramList: Node | null | undefined): { kind: MemberKind; param?: string } {
+  if (!className || !nameNode) return { kind: "method" };
+  const last = nameNode.type === "qualified_identifier" ? nameNode.childForFieldName("name") : nameNode;
+  if (!last) return { kind: "method" };
+  const params = paramList?.namedChildren.filter((c) => c.type === "parameter_declaration" || c.type === "optional_parameter_declaration") ?? [];
+  const p0 = params[0];
+  const p0type = typeHead(p0?.childForFieldName("type"));
+  const p0d = declName(p0?.childForFieldName("declarator"));
+  const selfParam = params.length === 1 && p0?.type === "parameter_declaration" && p0type === className;
+  if (last.type === "destructor_name") return { kind: "dtor" };
+  if (last.text === "operator=") {
+    if (selfParam && p0d.isRvalue) return { kind: "moveAssign", param: p0d.name };
+    if (selfParam) return { kind: "copyAssign", param: p0d.name };
+    return { kind: "method" };
+  }
+  if (last.text === className) {
+    if (selfParam && p0d.isRvalue) return { kind: "moveCtor", param: p0d.name };
+    if (selfParam && p0d.isRef) return { kind: "copyCtor", param: p0d.name };
+    return { kind: "ctor" };
+  }
+  return { kind: "method" };
+}
+
+function functionDeclarator(d: Node | null | undefined): Node | undefined {
+  let n = d;
+  for (let i = 0; n && i < 20; i++) {
+    if (n.type === "function_declarator") return n;
+    n = n.childForFieldName("declarator") ?? n.namedChildren.find((c) => c.type.endsWith("declarator"));
+  }
+  return undefined;
+}
+
+function exitsAfter(n: Node): boolean {
+  // Does the statement containing `n` sit in a block whose remaining statements include a return/throw/break/continue?
+  let stmt: Node | null = n;
+  while (stmt && stmt.parent && stmt.parent.type !== "compound_statement") {
+    if (stmt.parent.type === "function_definition") return false;
+    stmt = stmt.parent;
+  }
+  if (!stmt?.parent) return false;
+  // the function's own block: a final `return` does not make the release conditional
+  if (stmt.parent.parent?.type === "function_definition") return false;
+  let s = stmt.nextNamedSibling;
+  for (; s; s = s.nextNamedSibling) {
+    if (["return_statement", "throw_statement", "break_statement", "continue_statement"].includes(s.type)) return true;
+    if (s.type === "expression_statement" && s.namedChild(0)?.type === "throw_expression") return true;
+  }
+  // the block of a branch (if body / else) that falls through the end is not an exit
+  return false;
+}
+
+function extractFlow(def: Node, file: string, className: string | undefined, out: CFlow[]): CFlow | undefined {
+  const decl = def.childForFieldName("declarator");
+  const fd = functionDeclarator(decl);
+  if (!fd) return undefined;
+  const nameNode = fd.childForFieldName("declarator") ?? undefined;
+  let cls = className;
+  if (!cls && nameNode?.type === "qualified_identifier") {
+    cls = nameNode.childForFieldName("scope")?.text.split("::").pop();
+  }
+  const paramList = fd.childForFieldName("parameters");
+  const mk = memberKind(nameNode, cls, paramList);
+  const params: string[] = [];
+  for (const p of paramList?.namedChildren ?? []) {
+    const nm = declName(p.childForFieldName("declarator")).name;
+    params.push(nm ?? "");
+  }
+  const body = def.childForFieldName("body");
+  let state: CFlow["state"] = "user";
+  if (def.namedChildren.some((c) => c.type === "delete_method_clause")) state = "deleted";
+  else if (def.namedChildren.some((c) => c.type === "default_method_clause")) state = "defaulted";
+  const lastName = nameNode?.type === "qualified_identifier" ? nameNode.childForFieldName("name")?.text ?? nameNode.text : nameNode?.text ?? "";
+  const flow: CFlow = {
+    name: lastName, className: cls, member: cls ? mk.kind : undefined, state, params, locals: [...params],
+    range: rangeOf(file, def), nameRange: rangeOf(file, nameNode ?? def), bodyRange: body ? rangeOf(file, body) : undefined,
+    events: [], uptrs: [],
+  };
+  const ev: CEvent[] = flow.events;
+  // constructor member initializers: fir_(sonar_fir_new(…)) / fir_{…}
+  const inits = def.namedChildren.find((c) => c.type === "field_initializer_list");
+  for (const fi of inits?.namedChildren ?? []) {
+    if (fi.type !== "field_initializer") continue;
+    const fname = fi.namedChild(0)?.text ?? "";
+    const argsN = fi.namedChildren[1];
+    const a0 = argsN?.namedChildren.filter((c) => !c.type.endsWith("comment"))[0];
+    const lhs: CRef = { name: fname, this: true };
+    if (a0) visitExpr(a0, file, flow);
+    ev.push({ k: "assign", lhs, rhs: a0 ? argOf(a0, file) : null, isNull: !a0 || isNullNode(a0), range: rangeOf(file, fi) });
+    const a1 = argsN?.namedChildren[1];
+    if (a1) {
+      // unique_ptr member initialised with (ptr, deleter): remember the deleter
+      (ev[ev.length - 1] as { deleterArg?: string }).deleterArg = argOf(a1, file).ref?.name;
+    }
+  }
+  if (body) visitExpr(body, file, flow);
+  if (cls && mk.param) (flow as CFlow & { param?: string }).param = mk.param;
+  out.push(flow);
+  return flow;
+}
+
+/** Walks statements/expressions in source order, appending events to the flow. */
+function visitExpr(root: Node, file: string, flow: CFlow): void {
+  const ev = flow.events;
+  walk(root, (n) => {
+    switch (n.type) {
+      case "lambda_expression":
+        return false;
+      case "declaration": {
+        const t = n.childForFieldName("type");
+        for (const d of n.childrenForFieldName("declarator")) {
+          if (d.type === "function_declarator") {
+            // `std::unique_ptr<T> p(make());` parses as a function declaration (most vexing parse)
+            const nm = declName(d.childForFieldName("declarator")).name;
+            const up = nm ? uniquePtrOf(t, file, nm, rangeOf(file, n)) : undefined;
+            if (up && nm) {
+              const p0 = d.childForFieldName("parameters")?.namedChildren[0];
+              if (p0?.childForFieldName("declarator")?.type === "abstract_function_declarator") up.initCall = typeHead(p0.childForFieldName("type"));
+              flow.uptrs.push(up);
+              flow.locals.push(nm);
+            }
+            continue;
+          }
+          const dn = declName(d.type === "init_declarator" ? d.childForFieldName("declarator") : d);
+          if (!dn.name) continue;
+          flow.locals.push(dn.name);
+          const val = d.type === "init_declarator" ? d.childForFieldName("value") : null;
+          const up = uniquePtrOf(t, file, dn.name, rangeOf(file, n));
+          if (up) {
+            const first = val?.type === "argument_list" || val?.type === "initializer_list" ? val.namedChildren[0] : val;
+            const second = val?.type === "argument_list" || val?.type === "initializer_list" ? val.namedChildren[1] : undefined;
+            if (first) {
+              const a = argOf(first, file);
+              if (a.call) up.initCall = a.call;
+            }
+            if (second) up.initDeleter = argOf(second, file).ref?.name;
+            flow.uptrs.push(up);
+          }
+          if (val) {
+            const v0 = val.type === "argument_list" || val.type === "initializer_list" ? val.namedChildren[0] : val;
+            if (v0) {
+              visitExpr(v0, file, flow);
+              ev.push({ k: "assign", lhs: { name: dn.name }, rhs: argOf(v0, file), isNull: isNullNode(v0), range: rangeOf(file, d), decl: true, declType: typeHead(t) });
+            }
+          }
+        }
+        return false;
+      }
+      case "assignment_expression": {
+        const l = n.childForFieldName("left");
+        const r = n.childForFieldName("right");
+        const op = n.childForFieldName("operator")?.text ?? n.child(1)?.text;
+        if (r) visitExpr(r, file, flow);
+        const lr = refOf(l);
+        if (lr && op === "=") {
+          // std::exchange(o.h_, nullptr) on the right nulls its first argument
+          ev.push({ k: "assign", lhs: lr, rhs: r ? argOf(r, file) : null, isNull: isNullNode(r), range: rangeOf(file, n) });
+        } else if (l) visitExpr(l, file, flow);
+        return false;
+      }
+      case "delete_expression": {
+        const arg = n.namedChildren[n.namedChildCount - 1];
+        if (arg) {
+          visitExpr(arg, file, flow);
+          ev.push({ k: "delete", arg: argOf(arg, file), array: n.children.some((c) => c.type === "["), range: rangeOf(file, n), exitsAfter: exitsAfter(n) });
+        }
+        return false;
+      }
+      case "return_statement": {
+        const e = n.namedChild(0);
+        if (e) visitExpr(e, file, flow);
+        ev.push({ k: "return", arg: e ? argOf(e, file) : null, range: rangeOf(file, n) });
+        return false;
+      }
+      case "call_expression": {
+        const f = n.childForFieldName("function");
+        const argsN = n.childForFieldName("arguments")?.namedChildren.filter((c) => !c.type.endsWith("comment")) ?? [];
+        for (const a of argsN) visitExpr(a, file, flow);
+        if (f?.type === "field_expression") visitExpr(f, file, flow);
+        const callee = calleeName(f);
+        if (callee === "swap" && argsN.length === 2) {
+          const a = refOf(stripCasts(argsN[0]).node);
+          const b = refOf(stripCasts(argsN[1]).node);
+          if (a && b) ev.push({ k: "swap", a, b, range: rangeOf(file, n) });
+          return false;
+        }
+        if (callee === "exchange" && argsN.length === 2) {
+          const a = refOf(argsN[0]);
+          if (a) ev.push({ k: "assign", lhs: a, rhs: argOf(argsN[1]!, file), isNull: isNullNode(argsN[1]), range: rangeOf(file, n) });
+        }
+        if (f?.type !== "field_expression" && !/^(static_cast|reinterpret_cast|const_cast)$/.test(callee)) {
+          ev.push({ k: "call", callee, args: argsN.map((a) => argOf(a, file)), range: rangeOf(file, n), calleeRange: rangeOf(file, f!), exitsAfter: exitsAfter(n) });
+        }
+        return false;
+      }
+      case "field_expression": {
+        const r = refOf(n);
+        if (r) {
+          ev.push({ k: "use", ref: r, range: rangeOf(file, n) });
+          return false;
+        }
+        return;
+      }
+      case "identifier":
+        ev.push({ k: "use", ref: { name: n.text }, range: rangeOf(file, n) });
+        return;
+    }
+    return;
+  });
+}
+
+function extractClass(spec: Node, file: string, flows: CFlow[]): CClass | undefined {
+  const nameNode = spec.childForFieldName("name");
+  const body = spec.childForFieldName("body");
+  if (!nameNode || !body) return undefined;
+  const name = nameNode.type === "qualified_identifier" ? nameNode.childForFieldName("name")?.text ?? nameNode.text : nameNode.text;
+  const cls: CClass = {
+    name, file, range: rangeOf(file, spec), nameRange: rangeOf(file, nameNode), bodyRange: rangeOf(file, body),
+    bases: [], fields: [], members: [],
+  };
+  const bc = spec.namedChildren.find((c) => c.type === "base_class_clause");
+  for (const b of bc?.namedChildren ?? []) if (b.type !== "access_specifier" && b.type !== "virtual") cls.bases.push(typeHead(b));
+  for (const m of body.namedChildren) {
+    if (m.type === "function_definition") {
+      const f = extractFlow(m, file, name, flows);
+      if (f?.member) {
+        cls.members.push({ kind: f.member, state: f.state, name: f.name, range: f.range, nameRange: f.nameRange, param: (f as CFlow & { param?: string }).param });
+      }
+      continue;
+    }
+    if (m.type === "template_declaration") continue;
+    if (m.type !== "field_declaration" && m.type !== "declaration") continue;
+    const t = m.childForFieldName("type");
+    const decls = m.childrenForFieldName("declarator");
+    for (const d of decls) {
+      const fd = functionDeclarator(d);
+      if (fd) {
+        const nn = fd.childForFieldName("declarator") ?? undefined;
+        const mk = memberKind(nn, name, fd.childForFieldName("parameters"));
+        cls.members.push({ kind: mk.kind, state: "declared", name: nn?.text ?? "", range: rangeOf(file, m), nameRange: rangeOf(file, nn ?? m), param: mk.param });
+        continue;
+      }
+      const dn = declName(d);
+      if (!dn.name) continue;
+      const f: CField = { name: dn.name, typeText: t?.text ?? "", range: rangeOf(file, m) };
+      if (dn.isPtr) f.ptrTo = typeHead(t);
+      const up = uniquePtrOf(t, file, dn.name, rangeOf(file, m));
+      const dv = m.childForFieldName("default_value");
+      if (up) {
+        const first = dv?.type === "initializer_list" || dv?.type === "argument_list" ? dv.namedChildren[0] : dv;
+        const second = dv?.type === "initializer_list" || dv?.type === "argument_list" ? dv.namedChildren[1] : undefined;
+        if (first) { const a = argOf(first, file); if (a.call) up.initCall = a.call; }
+        if (second) up.initDeleter = argOf(second, file).ref?.name;
+        f.uptr = up;
+      } else if (dv) {
+        const v0 = dv.type === "initializer_list" ? dv.namedChildren[0] : dv;
+        f.initNull = !v0 || isNullNode(v0);
+        f.init = v0 ? argOf(v0, file) : null;
+      }
+      cls.fields.push(f);
+    }
+  }
+  return cls;
+}
+
+function extractCFile(root: Node, facts: FileFacts): void {
+  const file = facts.file;
+  const flows: CFlow[] = [];
+  const classes: CClass[] = [];
+  walk(root, (n) => {
+    if ((n.type === "class_specifier" || n.type === "struct_specifier") && n.childForFieldName("body") && facts.lang === "cpp") {
+      const c = extractClass(n, file, flows);
+      if (c) classes.push(c);
+      return false;
+    }
+    if (n.type === "function_definition") {
+      extractFlow(n, file, undefined, flows);
+      return false;
+    }
+    return;
+  });
+  // Out-of-class member definitions (`det::~det() { … }`) also describe members of their class.
+  for (const f of flows) {
+    if (!f.className || !f.member) continue;
+    const c = classes.find((x) => x.name === f.className);
+    if (c && !c.members.some((m) => m.range.line === f.range.line && m.range.file === f.range.file)) {
+      c.members.push({ kind: f.member, state: f.state, name: f.name, range: f.range, nameRange: f.nameRange, param: (f as CFlow & { param?: string }).param });
+    }
+  }
+  facts.classes.push(...classes);
+  const own: COwnFacts = { flows };
+  facts.extra.ownership = own;
+}
+
+function safely<A extends unknown[]>(f: (...a: A) => void): (...a: A) => void {
+  return (...a: A) => {
+    try {
+      f(...a);
+    } catch {
+      // Extraction never throws: partial facts are better than none (the rules treat missing
+      // facts as "nothing known").
+    }
+  };
+}
+
+rustExtractors.fnBody.push(safely((node: Node, fn: FnDecl, facts: FileFacts) => extractRustFn(node, fn, facts)));
+cFileExtractors.file.push(safely((root: Node, facts: FileFacts) => extractCFile(root, facts)));

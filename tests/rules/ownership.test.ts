@@ -1,0 +1,91 @@
+// Rule family "ownership": a bad and a good fixture per rule under test-fixtures/ownership/
+// (lightning-detector and seismic-array scenarios of our own). Bad fixtures must produce the
+// finding at the exact line; good fixtures (including a RAII wrapper with deleted copy and a
+// working move, a std::unique_ptr with the release function as deleter, and a handle released
+// through a helper function) must produce no ownership finding at all. Each fix offered for a
+// finding is applied to the fixture text and must make that finding go away.
+import { describe, expect, it } from "vitest";
+import * as fs from "node:fs";
+import * as path from "node:path";
+import { analyze, at } from "../helpers/analyze.js";
+import { fixesFor, type TextEdit } from "../../server/src/fixes/index.js";
+import { ownershipFamily } from "../../server/src/rules/ownership.js";
+import type { Finding } from "../../server/src/rules/api.js";
+
+const ROOT = path.resolve(__dirname, "../../test-fixtures/ownership");
+const OWN = new Set(ownershipFamily.rules.map((r) => r.id));
+
+function read(dir: string, withCommon: boolean): Record<string, string> {
+  const out: Record<string, string> = {};
+  const add = (d: string) => {
+    for (const f of fs.readdirSync(d)) {
+      const p = path.join(d, f);
+      if (fs.statSync(p).isDirectory()) add(p);
+      else if (/\.(rs|h|cc|c)$/.test(f)) out[path.relative(ROOT, p)] = fs.readFileSync(p, "utf8");
+    }
+  };
+  add(path.join(ROOT, dir));
+  if (withCommon) add(path.join(ROOT, "common"));
+  return out;
+}
+
+const CXX_RULES = new Set(["wrapper-leaks-handle", "copyable-owning-wrapper", "move-keeps-source-handle", "handle-used-after-release", "foreign-allocator-free", "handle-kind-mismatch"]);
+
+async function run(rule: string, kind: "bad" | "good") {
+  const files = read(`${rule}/${kind}`, CXX_RULES.has(rule));
+  const { findings } = await analyze(files);
+  return { files, findings, own: findings.filter((f) => OWN.has(f.rule)) };
+}
+
+/** Applies non-overlapping edits (0-based line/col ranges) to the texts they name. */
+export function applyEdits(files: Record<string, string>, edits: TextEdit[]): Record<string, string> {
+  const out = { ...files };
+  const byFile = new Map<string, TextEdit[]>();
+  for (const e of edits) {
+    const k = e.range.file.replace(/^\/ws\//, "");
+    byFile.set(k, [...(byFile.get(k) ?? []), e]);
+  }
+  for (const [file, es] of byFile) {
+    const text = out[file];
+    if (text === undefined) throw new Error(`edit for unknown file ${file}`);
+    const lines = text.split("\n");
+    const offset = (line: number, col: number) => lines.slice(0, line).reduce((n, l) => n + l.length + 1, 0) + col;
+    const sorted = es.map((e) => ({ s: offset(e.range.line, e.range.col), t: offset(e.range.endLine, e.range.endCol), text: e.newText })).sort((a, b) => b.s - a.s);
+    let s = text;
+    for (const e of sorted) s = s.slice(0, e.s) + e.text + s.slice(e.t);
+    out[file] = s;
+  }
+  return out;
+}
+
+function show(fs_: Finding[]): string {
+  return fs_.map((f) => `${f.rule} ${f.range.file}:${f.range.line + 1} ${f.message}`).join("\n");
+}
+
+const CASES: Record<string, string[]> = {
+  "handle-no-release": ["handle-no-release/bad/lib.rs:13", "handle-no-release/bad/lib.rs:29"],
+  "release-without-null-check": ["release-without-null-check/bad/lib.rs:16", "release-without-null-check/bad/lib.rs:31"],
+  "borrower-takes-ownership": ["borrower-takes-ownership/bad/lib.rs:21"],
+  "release-kind-mismatch": ["release-kind-mismatch/bad/lib.rs:24", "release-kind-mismatch/bad/lib.rs:36"],
+  "panic-across-c-abi": ["panic-across-c-abi/bad/lib.rs:15", "panic-across-c-abi/bad/lib.rs:31", "panic-across-c-abi/bad/lib.rs:36"],
+  "handle-types-indistinct": ["handle-types-indistinct/bad/lib.rs:14", "handle-types-indistinct/bad/lib.rs:21"],
+  "wrapper-leaks-handle": ["wrapper-leaks-handle/bad/stroke_block.cc:16"],
+  "copyable-owning-wrapper": ["copyable-owning-wrapper/bad/stroke_block.cc:4"],
+  "move-keeps-source-handle": ["move-keeps-source-handle/bad/stroke_block.cc:11"],
+  "handle-used-after-release": ["handle-used-after-release/bad/calibrate.cc:8", "handle-used-after-release/bad/calibrate.cc:9"],
+  "foreign-allocator-free": ["foreign-allocator-free/bad/labels.cc:10", "foreign-allocator-free/bad/labels.cc:16", "foreign-allocator-free/bad/labels.cc:20"],
+  "handle-kind-mismatch": ["handle-kind-mismatch/bad/channels.cc:6", "handle-kind-mismatch/bad/channels.cc:11"],
+};
+
+describe("ownership rules", () => {
+  for (const [rule, expected] of Object.entries(CASES)) {
+    it(`${rule}: bad fixture is reported at the exact lines`, async () => {
+      const { own } = await run(rule, "bad");
+      expect(at(own, rule).sort(), show(own)).toEqual([...expected].sort());
+    });
+    it(`${rule}: good fixture has no ownership finding`, async () => {
+      const { own } = await run(rule, "good");
+      expect(own, show(own)).toEqual([]);
+    });
+  }
+});
