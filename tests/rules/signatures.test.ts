@@ -54,3 +54,14 @@ describe("signatures family", () => {
     expect(lines).toEqual([]);
   });
 });
+
+describe("pointee signedness", () => {
+  test("byte pointers (`*const u8` for `const char *`) are common practice; I/Q sample pointers are not", async () => {
+    const { analyze, at } = await import("../helpers/analyze.js");
+    const { findings } = await analyze({
+      "k.rs": "#[no_mangle]\npub unsafe extern \"C\" fn tag(s: *const u8) {}\n#[no_mangle]\npub unsafe extern \"C\" fn iq(s: *const u16, n: usize) {}\n",
+      "k.h": "#include <stdint.h>\n#include <stddef.h>\nvoid tag(const char *s);\nvoid iq(const int16_t *s, size_t n);\n",
+    });
+    expect(at(findings, "param-signedness")).toEqual(["k.h:4"]);
+  });
+});

@@ -167,9 +167,16 @@ export function compareOn(model: Model, r0: AbiType, c0: AbiType, triple: Triple
   return null;
 }
 
+function isByte(t: AbiType): boolean {
+  return t.k === "scalar" && ["char", "schar", "uchar", "i8", "u8"].includes(t.s);
+}
+
 function comparePointee(model: Model, rt: AbiType, ct: AbiType, triple: Triple, level: number): TypeDiff | null {
   const d = compareOn(model, rt, ct, triple, level + 1);
   if (!d) return null;
+  // Byte buffers: `*const u8`/`*const i8` for `const char *` is common practice (strings, raw
+  // bytes); the signedness of the byte does not change what the pointer addresses.
+  if (d.kind === "sign" && isByte(rt) && isByte(ct)) return null;
   if (d.kind === "const" || d.kind === "sign" || d.kind === "name" || d.kind === "nullable") return d.kind === "const" ? { ...d, detail: `at the inner pointer level: ${d.detail}` } : d;
   if (d.kind === "depth") {
     return { kind: "depth", detail: `a different number of pointer levels: \`${describeRust(rt)}\` behind the pointer in Rust but \`${describeC(ct)}\` in C` };
