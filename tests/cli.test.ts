@@ -58,6 +58,12 @@ describe("ferrule check on the demo", () => {
     expect(r.err).toBe(""); // no progress line on a pipe
   });
 
+  test("on a terminal, a progress line on stderr (run under script(1) for a pseudo-terminal)", () => {
+    const r = spawnSync("script", ["-qec", `${process.execPath} ${BIN} check test-fixtures/sonar-demo > /dev/null`, "/dev/null"], { cwd: ROOT, encoding: "utf8", timeout: 60_000 });
+    expect(r.stdout).toMatch(/\rferrule: reading \d+\/\d+ files/);
+    expect(r.stdout).toContain("\r\x1b[K"); // and the line is cleared afterwards
+  });
+
   test("--target narrows the targets; a target-specific finding disappears on x86_64 alone", () => {
     const all = JSON.parse(ferrule(["check", "--format", "json", "test-fixtures/sonar-demo"]).out).findings.length;
     const one = JSON.parse(ferrule(["check", "--format", "json", "--target", "x86_64-unknown-linux-gnu", "test-fixtures/sonar-demo"]).out).findings;

@@ -116,7 +116,10 @@ export interface RunIO {
   cwd: string;
   stdout: (s: string) => void;
   stderr: (s: string) => void;
+  /** stdout is a terminal (colours). */
   isTTY: boolean;
+  /** stderr is a terminal (progress line); defaults to isTTY. */
+  stderrTTY?: boolean;
 }
 
 export async function run(argv: string[], io: RunIO): Promise<number> {
@@ -159,7 +162,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   }
   if (o.targets.length) cfg = { ...cfg, targets: o.targets };
   const ws = await Workspace.create(cfg);
-  const progress = io.isTTY
+  const progress = (io.stderrTTY ?? io.isTTY)
     ? (n: number, total: number) => io.stderr(`\rferrule: reading ${n}/${total} files…`)
     : undefined;
   await ws.loadAllAsync(paths.map((p) => path.resolve(io.cwd, p)), progress, { script: bundleScript() });
@@ -219,7 +222,8 @@ export async function main(): Promise<void> {
       cwd: process.cwd(),
       stdout: (s) => process.stdout.write(s),
       stderr: (s) => process.stderr.write(s),
-      isTTY: !!process.stderr.isTTY && !!process.stdout.isTTY,
+      isTTY: !!process.stdout.isTTY,
+      stderrTTY: !!process.stderr.isTTY,
     });
     if (code >= 0) process.exitCode = code;
   } catch (e) {
