@@ -19,15 +19,20 @@ export interface Fix {
 
 export type FixProvider = (f: Finding, model: Model) => Fix[];
 
-const providers = new Map<string, FixProvider>();
+// A hoisted function rather than a `const`: family modules imported at the end of this file
+// (import cycle) call registerFix before this module's body has run.
+function providerTable(): Map<string, FixProvider> {
+  const holder = providerTable as unknown as { table?: Map<string, FixProvider> };
+  return (holder.table ??= new Map());
+}
 
 /** Rule families register their fix providers here (one per rule id). */
 export function registerFix(rule: string, p: FixProvider): void {
-  providers.set(rule, p);
+  providerTable().set(rule, p);
 }
 
 export function fixesFor(f: Finding, model: Model): Fix[] {
-  const p = providers.get(f.rule);
+  const p = providerTable().get(f.rule);
   if (!p) return [];
   try {
     return p(f, model);
@@ -135,3 +140,4 @@ registerFix("arity-mismatch", syncWholePrototype);
 registerFix("export-name-mangled", rustExportFix);
 registerFix("cxx-needs-c-linkage", linkageFix);
 registerFix("no-c-declaration", addDeclarationFix);
+import "./ownership.js";
