@@ -10,7 +10,7 @@ import type { AbiType, Expr, Range } from "./types.js";
 /** A named value visible in a C/C++ function: parameter, local variable or class field. */
 export interface CVar {
   name: string;
-  kind: "param" | "local" | "field";
+  kind: "param" | "local" | "field" | "global";
   /** Declared type (for `auto`, the type inferred from the initialiser when known). */
   type: AbiType;
   text: string;

@@ -56,24 +56,25 @@ export interface FnContract {
 
 // ------------------------------------------------------------------------------------------
 
-export function lenTerm(e: Expr, lets?: Map<string, Expr>, depth = 0): LenTerm | undefined {
+/** `opaque`: treat calls, fields and other sub-expressions as opaque factors (for argument scaling). */
+export function lenTerm(e: Expr, lets?: Map<string, Expr>, depth = 0, opaque = false): LenTerm | undefined {
   if (depth > 30) return undefined;
   const one = (): LenTerm => ({ coef: 1, names: [], sizeofs: [], divNames: [], divSizeofs: [] });
   switch (e.k) {
     case "ident": {
       const l = lets?.get(e.name);
-      if (l) return lenTerm(l, lets, depth + 1);
+      if (l) return lenTerm(l, lets, depth + 1, opaque);
       return { ...one(), names: [e.name] };
     }
     case "num":
       return { ...one(), coef: e.value };
     case "cast":
-      return lenTerm(e.e, lets, depth + 1);
+      return lenTerm(e.e, lets, depth + 1, opaque);
     case "sizeof":
       return e.type ? { ...one(), sizeofs: [e.type] } : undefined;
     case "bin": {
-      const l = lenTerm(e.l, lets, depth + 1);
-      const r = lenTerm(e.r, lets, depth + 1);
+      const l = lenTerm(e.l, lets, depth + 1, opaque);
+      const r = lenTerm(e.r, lets, depth + 1, opaque);
       if (!l || !r) return undefined;
       if (e.op === "*") return { coef: l.coef * r.coef, names: [...l.names, ...r.names], sizeofs: [...l.sizeofs, ...r.sizeofs], divNames: [...l.divNames, ...r.divNames], divSizeofs: [...l.divSizeofs, ...r.divSizeofs] };
       if (e.op === "/") {
@@ -84,10 +85,8 @@ export function lenTerm(e: Expr, lets?: Map<string, Expr>, depth = 0): LenTerm |
       if (e.op === ">>" && e.r.k === "num" && e.r.value < 31) return { ...l, coef: l.coef / 2 ** e.r.value };
       return undefined;
     }
-    case "call":
-      if (e.callee === "min" || e.callee === "max") return undefined;
-      return undefined;
   }
+  if (opaque && (e.k === "call" || e.k === "field" || e.k === "index")) return { ...one(), names: [`?${JSON.stringify(e).length}`] };
   return undefined;
 }
 
@@ -325,7 +324,13 @@ export function contractOf(model: Model, symbol: string): FnContract | undefined
       const ti = t && termToIdx(t, rust);
       if (pi < 0 || !ti || !ti.names.length) continue;
       if (k.all.some((p) => p.source === "rust-body" && p.ptr === pi)) continue;
-      const unit = ti.sizeofs.length && !ti.divSizeofs.length ? "bytes" : "items";
+      // The unit of the length *parameter*: `nbytes / size_of::<T>()` means the parameter counts
+      // bytes; `n * size_of::<T>()` (a byte view) means it counts items. A body that uses a
+      // byte-named parameter as an item count is reported by the body rules; the parameter's
+      // name stays the better guess for callers.
+      const lpName = singleParam(ti) !== undefined ? rust.params[singleParam(ti)!]?.name ?? "" : "";
+      const cName = singleParam(ti) !== undefined ? cHeader?.params[singleParam(ti)!]?.name ?? lpName : lpName;
+      const unit = ti.divSizeofs.length > ti.sizeofs.length || (!ti.sizeofs.length && !ti.divSizeofs.length && (countUnit(lpName) === "bytes" || countUnit(cName) === "bytes")) ? "bytes" : "items";
       add({ ptr: pi, ptrName: ref.params[pi]?.name ?? s.root, len: ti, lenText: s.lenText, lenParam: singleParam(ti), unit, source: "rust-body", evidence: `\`${s.mut ? "from_raw_parts_mut" : "from_raw_parts"}(${s.root}, ${s.lenText})\` at ${loc(s.range)}`, at: s.range });
     }
   }

@@ -148,7 +148,7 @@ function checkRust(model: Model, k: FnContract, out: Finding[]): void {
       out.push(finding(CONST_WRITE, s.range, `\`from_raw_parts_mut\` makes a mutable slice from \`${param.name}\`, which \`${rust.name}\` takes as \`${param.text}\` (read-only): the caller's data is written`, related([{ range: param.range, message: `\`${param.name}\` is declared \`${param.text}\`` }])));
     }
     // Pick the contract pairing that is not this very slice.
-    const all = k.all.filter((p) => p.ptr === pi && !(p.source === "rust-body" && p.at.line === s.range.line && p.at.file === s.range.file));
+    const all = k.all.filter((p) => p.ptr === pi && p.source !== "rust-body");
     const best = all.sort((a, b) => rank(b) - rank(a))[0];
     if (!t || !best) {
       // No contract to compare with; still catch a byte view of a typed pointer with an item count.
@@ -286,7 +286,8 @@ function scopeOf(model: Model, cs: CallSite): CFnScope | undefined {
 function varOf(sc: CFnScope | undefined, name: string, line: number): CVar | undefined {
   if (!sc) return undefined;
   let best: CVar | undefined;
-  for (const v of sc.vars) if (v.name === name && (v.kind !== "local" || v.line <= line) && (!best || v.line >= best.line)) best = v;
+  const rank = { global: 0, field: 1, param: 2, local: 3 };
+  for (const v of sc.vars) if (v.name === name && (v.kind !== "local" || v.line <= line) && (!best || rank[v.kind] > rank[best.kind] || (v.kind === "local" && best.kind === "local" && v.line >= best.line))) best = v;
   return best;
 }
 
@@ -301,6 +302,14 @@ function identName(e: Expr): string | undefined {
     return undefined;
   }
   return undefined;
+}
+
+/** The variable a length argument measures: `n_in`, `v.size()`, `std::size(v)`. */
+function lenIdent(e: Expr): string | undefined {
+  if (e.k === "call" && e.recv && (e.callee === "size" || e.callee === "length")) return identName(e.recv);
+  if (e.k === "call" && !e.recv && /(^|::)size$/.test(e.callee) && e.args[0]) return identName(e.args[0]);
+  if (e.k === "cast") return lenIdent(e.e);
+  return identName(e);
 }
 
 const OUT_NAME = /(^|_)(out|output|outputs|dst|dest|y|result|res|mag|power)(_|$|\d)|^out|out$/i;
@@ -351,7 +360,7 @@ function checkCalls(model: Model, out: Finding[]): void {
           } else if (P && A && S && S !== A && pair?.lenParam !== undefined && pair.unit === "items") {
             // `(const float *)cbuf` of complex items: the count must be scaled by S / A
             const la = cs.args[pair.lenParam];
-            const lt = la && lenTerm(la.expr);
+            const lt = la && lenTerm(la.expr, undefined, 0, true);
             const ratio = S / A;
             const scaled = lt && Math.abs((numPart(model, lt, "c") ?? 1) - ratio) < 1e-9;
             if (la && !scaled && ratio > 1 && Number.isInteger(ratio)) {
@@ -368,8 +377,10 @@ function checkCalls(model: Model, out: Finding[]): void {
         }
       });
       // --- lengths: bytes vs items
+      const seenLen = new Set<number>();
       for (const [pi, P] of k.pairs) {
-        if (P.lenParam === undefined || P.len.names.length !== 1) continue;
+        if (P.lenParam === undefined || P.len.names.length !== 1 || seenLen.has(P.lenParam)) continue;
+        seenLen.add(P.lenParam);
         const la = cs.args[P.lenParam];
         if (!la) continue;
         const pt = pointee(model, decl.params[pi]?.type, side);
@@ -406,7 +417,7 @@ function checkCalls(model: Model, out: Finding[]): void {
         if (P.ptr >= Q.ptr || P.lenParam === Q.lenParam) continue;
         const lp = cs.args[P.lenParam!]!, lq = cs.args[Q.lenParam!]!;
         const pn = decl.params[P.lenParam!]!.name, qn = decl.params[Q.lenParam!]!.name;
-        const ap = identName(lp.expr), aq = identName(lq.expr);
+        const ap = lenIdent(lp.expr), aq = lenIdent(lq.expr);
         const bufP = identName(cs.args[P.ptr]!.expr), bufQ = identName(cs.args[Q.ptr]!.expr);
         const crossed = (ap === qn && aq === pn) || (!!bufP && !!bufQ && !!ap && !!aq && (ap.includes(bufQ) && aq.includes(bufP)) && !(ap.includes(bufP) || aq.includes(bufQ)));
         if (crossed) out.push(finding(SWAPPED, cs.calleeRange, `the lengths look swapped: \`${lp.text}\` is passed for \`${pn}\` (length of \`${P.ptrName}\`) and \`${lq.text}\` for \`${qn}\` (length of \`${Q.ptrName}\`)`, rel(P)));
@@ -570,7 +581,7 @@ function checkWork(model: Model, calls: CallSite[], sc: CFnScope, ports: Port[],
       if (Number.isInteger(ratio) && ratio > 1 && uses.length) {
         ok = uses.every((u) => {
           const la = u.P?.lenParam !== undefined ? u.cs.args[u.P.lenParam] : undefined;
-          const lt = la && lenTerm(la.expr);
+          const lt = la && lenTerm(la.expr, undefined, 0, true);
           return !!lt && Math.abs((numPart(model, lt, "c") ?? 0) % ratio) < 1e-9 && (numPart(model, lt, "c") ?? 0) >= ratio;
         });
       }
@@ -586,7 +597,7 @@ function checkWork(model: Model, calls: CallSite[], sc: CFnScope, ports: Port[],
     for (const u of uses) {
       if (u.P?.lenParam === undefined) continue;
       const la = u.cs.args[u.P.lenParam];
-      const lt = la && lenTerm(la.expr);
+      const lt = la && lenTerm(la.expr, undefined, 0, true);
       if (!la || !lt) continue;
       const mentions = vnames.every((vn) => lt.names.includes(vn) || u.cs.args.some((a, i) => i !== u.pi && exprMentions(a.expr, vn)));
       if (mentions) continue;

@@ -28,8 +28,7 @@ const MAX_CALLS_PER_FILE = 20_000;
 // Shared: expression → Expr
 
 function hasConstQual(n: Node): boolean {
-  for (let i = 0; i < n.childCount; i++) {
-    const c = n.child(i)!;
+  for (const c of n.children) {
     if (c.type === "type_qualifier" && /\bconst\b/.test(c.text)) return true;
   }
   return false;
@@ -159,6 +158,8 @@ function containerOf(spec: Node | null, ctx: DeclCtx): { container: CVar["contai
   return { container: kind, elem: typeOfDescriptor(td, ctx), constElems: hasConstQual(td) };
 }
 
+const KIND_RANK: Record<CVar["kind"], number> = { global: 0, field: 1, param: 2, local: 3 };
+
 class Scope {
   constructor(readonly vars: CVar[]) {}
   /** The declaration of `name` in force at `line` (latest declared at or before it; else any). */
@@ -167,7 +168,7 @@ class Scope {
     for (const v of this.vars) {
       if (v.name !== name) continue;
       if (v.kind !== "local" || v.line <= line) {
-        if (!best || (v.kind === "local" && (best.kind !== "local" || v.line >= best.line))) best = v;
+        if (!best || KIND_RANK[v.kind] > KIND_RANK[best.kind] || (v.kind === "local" && best.kind === "local" && v.line >= best.line)) best = v;
       }
     }
     if (!best) best = this.vars.find((v) => v.name === name);
@@ -392,6 +393,18 @@ function extractCFile(root: Node, facts: FileFacts): void {
     if (n.type === "compound_statement") return false;
     return;
   });
+  // File-scope variables (`static const float table[64]`), visible in every function.
+  const globals: CVar[] = [];
+  const gScope = new Scope(globals);
+  walk(root, (n) => {
+    if (n.type === "function_definition" || n.type === "class_specifier" || n.type === "compound_statement") return false;
+    if (n.type === "declaration") {
+      const vs = varsFromDeclaration(n, "global", file, ctx, gScope);
+      for (const v of vs) if (v.type.k !== "fn") globals.push(v);
+      return false;
+    }
+    return;
+  });
   const fieldCache = new Map<string, CVar[]>();
   const calls: CallSite[] = [];
   walk(root, (n) => {
@@ -400,7 +413,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
     const nameNode = fd?.childForFieldName("declarator");
     if (!fd || !nameNode) return false;
     const { cls, method } = enclosingClass(n, nameNode.text);
-    const vars: CVar[] = [];
+    const vars: CVar[] = [...globals];
     if (cls) {
       if (!fieldCache.has(cls)) fieldCache.set(cls, classes.has(cls) ? classFields(classes.get(cls)!, file, ctx) : []);
       vars.push(...fieldCache.get(cls)!);
