@@ -62,3 +62,75 @@ describe("buffer rules on fixtures", () => {
     });
   }
 });
+
+describe("pairing inference", () => {
+  it("ranks explicit declarations over Rust body evidence over naming, and keeps the evidence", async () => {
+    const { ws } = await analyze({
+      "k.h": [
+        "#include <stddef.h>",
+        "void a_fn(const float *x, float *y, size_t n, size_t m) __attribute__((access(write_only, 2, 4)));",
+        "void b_fn(size_t n, const float in[static n]);",
+        "void c_fn(float *__counted_by(len) buf, size_t len);",
+        "/* ferrule-buffers: raw[nbytes bytes], ctx nullable */",
+        "void d_fn(const void *raw, size_t nbytes, void *ctx);",
+        "void e_fn(const float *samples, size_t count);",
+      ].join("\n"),
+      "lib.rs": [
+        "#[no_mangle] pub unsafe extern \"C\" fn a_fn(x: *const f32, y: *mut f32, n: usize, m: usize) {",
+        "    let _s = core::slice::from_raw_parts(x, n);",
+        "    let _t = core::slice::from_raw_parts_mut(y, n);",
+        "}",
+      ].join("\n"),
+    });
+    const model = ws.model();
+    const a = contractOf(model, "a_fn")!;
+    expect(a.pairs.get(1)!.source).toBe("gcc-access"); // beats the body's `from_raw_parts_mut(y, n)`
+    expect(a.pairs.get(1)!.lenParam).toBe(3);
+    expect(a.pairs.get(0)!.source).toBe("rust-body");
+    expect(a.pairs.get(0)!.evidence).toContain("from_raw_parts(x, n)` at lib.rs:2");
+    const b = contractOf(model, "b_fn")!;
+    expect(b.pairs.get(1)).toMatchObject({ source: "c99-array", lenParam: 0, unit: "items" });
+    const c = contractOf(model, "c_fn")!;
+    expect(c.c!.params[0]!.name).toBe("buf");
+    expect(c.pairs.get(0)).toMatchObject({ source: "counted-by", lenParam: 1 });
+    const d = contractOf(model, "d_fn")!;
+    expect(d.pairs.get(0)).toMatchObject({ source: "ferrule-doc", unit: "bytes", lenParam: 1 });
+    expect([...d.nullable.keys()]).toEqual([2]);
+    const e = contractOf(model, "e_fn")!;
+    expect(e.pairs.get(0)).toMatchObject({ source: "naming", unit: "items", lenParam: 1 });
+  });
+});
+
+describe("port settings", () => {
+  const block = [
+    "#include \"lightning.h\"",
+    "class front_end {",
+    "public:",
+    "    front_end() { declare_stream(0, sizeof(short)); declare_stream(1, sizeof(float)); }",
+    "    int process(int n, const void *in_buf, void *out_buf) {",
+    "        const float *x = static_cast<const float *>(in_buf);",
+    "        float *y = static_cast<float *>(out_buf);",
+    "        strike_envelope(x, y, n);",
+    "        return n;",
+    "    }",
+    "};",
+  ].join("\n");
+  const dir = path.join(ROOT, "port-item-size-mismatch", "good");
+  const base = { "lightning.h": fs.readFileSync(path.join(dir, "lightning.h"), "utf8"), "lib.rs": fs.readFileSync(path.join(dir, "lib.rs"), "utf8"), "front_end.cc": block };
+
+  it("a configured port-declaration call is checked like the defaults", async () => {
+    const { parseConfigText } = await import("../../server/src/analysis/config");
+    const cfg = parseConfigText([
+      "[ports]",
+      "decl = [ { call = \"declare_stream\", item_size_args = [1], direction = \"seq\" } ]",
+    ].join("\n"), ".ferrule.toml");
+    const { findings } = await analyze(base, { families: cfg.families });
+    expect(got(findings)).toEqual(["port-item-size-mismatch front_end.cc:6"]);
+    expect(findings.find((f) => f.rule === "port-item-size-mismatch")!.message).toContain("`sizeof(short)` (2 bytes)");
+  });
+
+  it("without the setting the unknown call declares no ports", async () => {
+    const { findings } = await analyze(base);
+    expect(got(findings)).toEqual([]);
+  });
+});

@@ -331,7 +331,7 @@ export function contractOf(model: Model, symbol: string): FnContract | undefined
       const lpName = singleParam(ti) !== undefined ? rust.params[singleParam(ti)!]?.name ?? "" : "";
       const cName = singleParam(ti) !== undefined ? cHeader?.params[singleParam(ti)!]?.name ?? lpName : lpName;
       const unit = ti.divSizeofs.length > ti.sizeofs.length || (!ti.sizeofs.length && !ti.divSizeofs.length && (countUnit(lpName) === "bytes" || countUnit(cName) === "bytes")) ? "bytes" : "items";
-      add({ ptr: pi, ptrName: ref.params[pi]?.name ?? s.root, len: ti, lenText: s.lenText, lenParam: singleParam(ti), unit, source: "rust-body", evidence: `\`${s.mut ? "from_raw_parts_mut" : "from_raw_parts"}(${s.root}, ${s.lenText})\` at ${loc(s.range)}`, at: s.range });
+      add({ ptr: pi, ptrName: ref.params[pi]?.name ?? s.root, len: ti, lenText: s.lenText, lenParam: singleParam(ti), unit, source: "rust-body", evidence: `\`${s.mut ? "from_raw_parts_mut" : "from_raw_parts"}(${s.root}, ${s.lenText})\` at ${loc(s.range)}${unit === "bytes" && !ti.divSizeofs.length ? `, with \`${cName}\` a byte count by its name` : ""}`, at: s.range });
     }
   }
   // 3. naming conventions (on the declaration C callers see, else the Rust one)

@@ -550,6 +550,7 @@ function portOfInit(e: Expr | undefined, sc: CFnScope): { dir: "in" | "out"; k: 
 }
 
 function checkWork(model: Model, calls: CallSite[], sc: CFnScope, ports: Port[], out: Finding[]): void {
+  const reported = new Set<string>();
   for (const v of sc.vars) {
     if (v.kind !== "local" || v.type.k !== "ptr") continue;
     const pk = portOfInit(v.init, sc);
@@ -601,6 +602,9 @@ function checkWork(model: Model, calls: CallSite[], sc: CFnScope, ports: Port[],
       if (!la || !lt) continue;
       const mentions = vnames.every((vn) => lt.names.includes(vn) || u.cs.args.some((a, i) => i !== u.pi && exprMentions(a.expr, vn)));
       if (mentions) continue;
+      const key = `${la.range.file}:${la.range.line}:${la.range.col}`;
+      if (reported.has(key)) continue;
+      reported.add(key);
       out.push(finding(VECTOR_COUNT, la.range, `\`${v.name}\` is vector port ${pk.k} (item size \`${port.text}\`: ${vnames.join(" × ")} values per item), but \`${u.decl.name}\` gets \`${la.text}\` as the count of \`${u.decl.params[u.pi]?.name}\` (${pairText(u.P, u.decl)}); pass \`${la.text} * ${vnames.join(" * ")}\``, related));
     }
   }

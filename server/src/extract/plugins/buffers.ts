@@ -526,11 +526,18 @@ function callSite(m: Node, scope: Scope, ctx: DeclCtx, file: string): CallSite |
  * array parameters (`float out[static n]`) and clang's `__counted_by(n)` / `__sized_by(n)`.
  * Stored as `FileFacts.extra.bufferHints[fn.id]`.
  */
-function collectCHints(facts: FileFacts): void {
+function collectCHints(facts: FileFacts, nullFix: Map<string, string>): void {
   const hints: Record<string, BufferHint[]> = {};
   for (const fn of facts.fns) {
     const list: BufferHint[] = [];
     fn.params.forEach((p, i) => {
+      // clang nullability qualifiers after the `*` (`const float *_Nullable mask`) read as the
+      // declarator name to the grammar; the real name follows them.
+      const fixed = nullFix.get(`${p.range.line}:${p.range.col}`);
+      if (fixed && /^(_Nullable|_Nonnull|_Null_unspecified|__nullable|__nonnull)$/.test(p.name)) {
+        p.name = fixed;
+        p.text = `${p.text} ${fixed}`;
+      }
       // clang bounds-safety macros: `float *__counted_by(n) out` reads as a function declarator
       // to the grammar; the macro argument is opaque text, so it is read from the parameter text.
       const cb = /__(counted_by|sized_by)(?:_or_null)?\s*\(\s*([A-Za-z_]\w*)\s*\)\s*([A-Za-z_]\w*)\s*$/.exec(p.text) ?? /__attribute__\s*\(\(\s*(counted_by|sized_by)\s*\(\s*([A-Za-z_]\w*)\s*\)\s*\)\)\s*([A-Za-z_]\w*)?\s*$/.exec(p.text);
@@ -574,6 +581,22 @@ function collectCHints(facts: FileFacts): void {
   facts.extra.bufferHints = hints;
 }
 
+/** `const float *_Nullable mask`: the grammar takes `_Nullable` for the name and leaves `mask`
+ * in an ERROR node right after the parameter. Returns param position → real name. */
+function nullabilityNames(root: Node): Map<string, string> {
+  const out = new Map<string, string>();
+  walk(root, (n) => {
+    if (n.type === "compound_statement") return false;
+    if (n.type !== "parameter_declaration") return;
+    if (!/\b(_Nullable|_Nonnull|_Null_unspecified|__nullable|__nonnull)\s*$/.test(n.text)) return false;
+    const next = n.nextSibling;
+    const id = next?.type === "ERROR" ? next.namedChildren.find((c) => c.type === "identifier") : undefined;
+    if (id) out.set(`${n.startPosition.row}:${n.startPosition.column}`, id.text);
+    return false;
+  });
+  return out;
+}
+
 function parseCExprText(text: string): Expr | undefined {
   if (text.length > 200) return undefined;
   const t = parseText("c", `int _ferrule_len = (${text});`);
@@ -596,7 +619,7 @@ function parseCExprText(text: string): Expr | undefined {
 cFileExtractors.file.push((root, facts) => {
   try {
     extractCFile(root, facts);
-    collectCHints(facts);
+    collectCHints(facts, nullabilityNames(root));
   } catch (e) {
     facts.notices.push({ rule: "internal-error", severity: "warning", message: `ferrule could not read call sites in ${facts.file}: ${(e as Error).message}`, range: { file: facts.file, line: 0, col: 0, endLine: 0, endCol: 0 } });
   }
