@@ -8,7 +8,8 @@ import { describe, expect, it } from "vitest";
 import * as fs from "node:fs";
 import * as path from "node:path";
 import { analyze, at } from "../helpers/analyze.js";
-import { fixesFor, type TextEdit } from "../../server/src/fixes/index.js";
+import { fixesFor } from "../../server/src/fixes/index.js";
+import { applyEdits } from "../helpers/edits.js";
 import { ownershipFamily } from "../../server/src/rules/ownership.js";
 import type { Finding } from "../../server/src/rules/api.js";
 
@@ -37,27 +38,6 @@ async function run(rule: string, kind: "bad" | "good") {
   return { files, findings, own: findings.filter((f) => OWN.has(f.rule)) };
 }
 
-/** Applies non-overlapping edits (0-based line/col ranges) to the texts they name. */
-export function applyEdits(files: Record<string, string>, edits: TextEdit[]): Record<string, string> {
-  const out = { ...files };
-  const byFile = new Map<string, TextEdit[]>();
-  for (const e of edits) {
-    const k = e.range.file.replace(/^\/ws\//, "");
-    byFile.set(k, [...(byFile.get(k) ?? []), e]);
-  }
-  for (const [file, es] of byFile) {
-    const text = out[file];
-    if (text === undefined) throw new Error(`edit for unknown file ${file}`);
-    const lines = text.split("\n");
-    const offset = (line: number, col: number) => lines.slice(0, line).reduce((n, l) => n + l.length + 1, 0) + col;
-    const sorted = es.map((e) => ({ s: offset(e.range.line, e.range.col), t: offset(e.range.endLine, e.range.endCol), text: e.newText })).sort((a, b) => b.s - a.s);
-    let s = text;
-    for (const e of sorted) s = s.slice(0, e.s) + e.text + s.slice(e.t);
-    out[file] = s;
-  }
-  return out;
-}
-
 function show(fs_: Finding[]): string {
   return fs_.map((f) => `${f.rule} ${f.range.file}:${f.range.line + 1} ${f.message}`).join("\n");
 }
@@ -73,7 +53,7 @@ const CASES: Record<string, string[]> = {
   "copyable-owning-wrapper": ["copyable-owning-wrapper/bad/stroke_block.cc:4"],
   "move-keeps-source-handle": ["move-keeps-source-handle/bad/stroke_block.cc:11"],
   "handle-used-after-release": ["handle-used-after-release/bad/calibrate.cc:8", "handle-used-after-release/bad/calibrate.cc:9"],
-  "foreign-allocator-free": ["foreign-allocator-free/bad/labels.cc:10", "foreign-allocator-free/bad/labels.cc:16", "foreign-allocator-free/bad/labels.cc:20"],
+  "foreign-allocator-free": ["foreign-allocator-free/bad/labels.cc:11", "foreign-allocator-free/bad/labels.cc:17", "foreign-allocator-free/bad/labels.cc:21"],
   "handle-kind-mismatch": ["handle-kind-mismatch/bad/channels.cc:6", "handle-kind-mismatch/bad/channels.cc:11"],
 };
 
@@ -86,6 +66,34 @@ describe("ownership rules", () => {
     it(`${rule}: good fixture has no ownership finding`, async () => {
       const { own } = await run(rule, "good");
       expect(own, show(own)).toEqual([]);
+    });
+  }
+});
+
+// Rules whose bad fixtures get a fix; every finding of these rules must offer one.
+const FIXABLE = ["handle-no-release", "release-without-null-check", "borrower-takes-ownership", "release-kind-mismatch", "panic-across-c-abi",
+  "wrapper-leaks-handle", "copyable-owning-wrapper", "move-keeps-source-handle", "foreign-allocator-free"];
+
+describe("ownership quick-fixes", () => {
+  for (const rule of FIXABLE) {
+    it(`${rule}: applying each fix removes its finding`, async () => {
+      const { files, own } = await run(rule, "bad");
+      const { ws } = await analyze(files);
+      const mine = own.filter((f) => f.rule === rule);
+      expect(mine.length).toBeGreaterThan(0);
+      let fixed = 0;
+      for (const f of mine) {
+        const fx = fixesFor(f, ws.model());
+        // a std::unique_ptr with the default deleter needs its type changed: no text fix offered
+        if (rule === "foreign-allocator-free" && f.message.includes("default deleter")) { expect(fx).toEqual([]); continue; }
+        expect(fx.length, `no fix for ${f.message}`).toBeGreaterThan(0);
+        const after = applyEdits(files, fx[0]!.edits);
+        const again = (await analyze(after)).findings.filter((g) => g.rule === rule);
+        expect(again.some((g) => g.message === f.message), `${f.message}\n--- after fix:\n${show(again)}`).toBe(false);
+        expect(again.length).toBe(mine.length - 1);
+        fixed++;
+      }
+      expect(fixed).toBeGreaterThan(0);
     });
   }
 });

@@ -185,6 +185,15 @@ function matchAllocation(f: Finding, model: Model): Fix[] {
   const ctor = model.fnById(f.data?.ctor);
   const cr = f.data?.calleeRange as Range | undefined;
   const how = f.data?.how;
+  const inner = f.data?.inner;
+  const relFn = model.fnById(f.data?.rel);
+  if (ctor && relFn && typeof inner === "string" && f.data?.direct) {
+    // Box<A> freed as Box<B>: correct the pointee type the release casts to
+    const rel = ownOf(relFn)?.releases.find((r) => r.range.line === f.range.line && r.range.col === f.range.col);
+    const castRange = rel?.arg.castRange;
+    if (castRange) return [{ title: `Free it as \`${inner}\`, the type \`${ctor.symbol}\` allocated`, edits: [{ range: castRange, newText: inner }], preferred: true }];
+    return [];
+  }
   if (!ctor || !cr || typeof how !== "string") return [];
   const path = how === "cstring" ? "std::ffi::CString::from_raw" : how === "arc" ? "std::sync::Arc::from_raw" : how === "rc" ? "std::rc::Rc::from_raw" : how === "box" ? "Box::from_raw" : undefined;
   if (!path) return [];

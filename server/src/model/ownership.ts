@@ -13,6 +13,8 @@ export interface RustArg {
   ident?: string;
   /** Pointee type named by a cast on the way (`h as *mut Det`, `h.cast::<Det>()`). */
   cast?: string;
+  /** Where that pointee type is written (for fixes that correct it). */
+  castRange?: Range;
   text: string;
 }
 

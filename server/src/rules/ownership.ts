@@ -326,7 +326,7 @@ function checkRust(model: Model, om: OwnershipModel, out: Finding[]): void {
         out.push(finding(RELEASE_KIND, r.site,
           `\`${r.fn.symbol}\` frees the handle as \`${boxOf(r.how)}<${r.inner}>\`, but \`${c.fn.symbol}\` allocated a \`${boxOf(c.how)}<${c.inner}>\``,
           [fnRel(c.fn), { range: c.site, message: `allocated here as ${c.inner}` }],
-          { data: { rel: r.fn.id, ctor: c.fn.id } }));
+          { data: { rel: r.fn.id, ctor: c.fn.id, inner: c.inner, direct: !r.chain.length } }));
       }
     }
   }

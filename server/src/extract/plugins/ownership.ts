@@ -107,21 +107,25 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       case "type_cast_expression": {
         const inner = argRef(n.childForFieldName("value"), depth + 1);
         const tt = n.childForFieldName("type");
-        const pt = tt?.type === "pointer_type" ? tt.childForFieldName("type")?.text : undefined;
-        return { ...inner, cast: pt ? lastSeg(pt) : inner.cast, text: n.text };
+        const ptn = tt?.type === "pointer_type" ? tt.childForFieldName("type") : undefined;
+        const pt = ptn?.text;
+        return { ...inner, cast: pt ? lastSeg(pt) : inner.cast, castRange: ptn ? rangeOf(file, ptn) : inner.castRange, text: n.text };
       }
       case "call_expression": {
         // p.cast::<T>() / p.cast()
         const f = n.childForFieldName("function");
         let fe = f;
         let ta: string | undefined;
+        let taRange: Range | undefined;
         if (f?.type === "generic_function") {
           fe = f.childForFieldName("function");
-          ta = f.childForFieldName("type_arguments")?.namedChild(0)?.text;
+          const tn = f.childForFieldName("type_arguments")?.namedChild(0);
+          ta = tn?.text;
+          if (tn) taRange = rangeOf(file, tn);
         }
         if (fe?.type === "field_expression" && ["cast", "cast_mut", "cast_const", "as_ptr"].includes(fe.childForFieldName("field")?.text ?? "")) {
           const inner = argRef(fe.childForFieldName("value"), depth + 1);
-          return { ...inner, cast: ta ? lastSeg(ta) : inner.cast, text: n.text };
+          return { ...inner, cast: ta ? lastSeg(ta) : inner.cast, castRange: taRange ?? inner.castRange, text: n.text };
         }
         return { text: n.text };
       }

@@ -1,6 +1,7 @@
 // Channel labelling: releases Rust-allocated memory with the C/C++ allocator.
 #include <cstdio>
 #include <cstdlib>
+#include <cstring>
 #include <memory>
 #include "../../common/ltg.h"
 
@@ -16,8 +17,7 @@ void reset_tracker() {
     delete t;
 }
 
-int count_once(float v) {
-    std::unique_ptr<ltg_tracker> t{ltg_tracker_new(8)};
-    ltg_tracker_feed(t.get(), v);
-    return (int)ltg_tracker_count(t.get());
+size_t label_len(uint32_t ch) {
+    std::unique_ptr<char[]> name{ltg_label(ch)};
+    return std::strlen(name.get());
 }
