@@ -215,6 +215,16 @@ export function complexBase(decl: Node, base: AbiType): { base: AbiType; nameFro
   if (d && (d.type === "identifier" || d.type === "field_identifier") && COMPLEX_WORDS.has(d.text)) {
     return { base: { k: "complex", of }, nameFromError: errAfter?.text.trim() };
   }
+  // `float _Complex x[5];`: array_declarator(declarator: `_Complex`, ERROR(x), size: 5).
+  let inner = d;
+  for (let g = 0; inner && g < 20 && inner.type === "array_declarator"; g++) {
+    const nd: Node | null = inner.childForFieldName("declarator");
+    if (nd && (nd.type === "identifier" || nd.type === "field_identifier") && COMPLEX_WORDS.has(nd.text)) {
+      const err = inner.namedChildren.find((c) => c.type === "ERROR" && c.startIndex >= nd.endIndex);
+      if (err) return { base: { k: "complex", of }, nameFromError: err.text.trim() };
+    }
+    inner = nd;
+  }
   return { base };
 }
 

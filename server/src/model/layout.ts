@@ -1,14 +1,39 @@
 // Layout of ABI types per target: size, alignment, field offsets, padding.
 //
-// C struct layout follows the System V psABIs (x86_64 §3.1.2, i386 §2.1), AAPCS/AAPCS64 and the
-// Microsoft x64 rules, which agree for non-bit-field members: each member at the next offset that
-// is a multiple of its alignment, the struct aligned to its most-aligned member, size rounded up to
-// that alignment (C11 §6.7.2.1 leaves padding to the implementation; these ABIs fix it).
-// `packed` caps member alignment at 1 (or N for pack(N)/packed(N)); `aligned(N)`/`align(N)` raise
-// it. Rust `#[repr(C)]` uses the same algorithm (Rust Reference, "Type layout", repr(C) structs).
+// Sources, per rule (each is checked against clang --target=TRIPLE for all five targets, the Debian
+// gcc cross compilers and host gcc for the Linux targets and rustc on the host by
+// tests/layout.oracle.test.ts, with at least 1,000 random structs):
+//  - Ordinary members (C11 §6.7.2.1p15-17 leaves padding to the implementation; the ABIs fix it):
+//    System V AMD64 psABI §3.1.2 "Aggregates and Unions", System V i386 psABI §2.1 (same rule,
+//    with 4-byte alignment for 8-byte scalars), AAPCS §4.3 / AAPCS64 §5.7 "Composite Types", and
+//    the Microsoft x64 "struct alignment" rules: each member at the next offset that is a multiple
+//    of its alignment, the aggregate aligned to its most-aligned member, its size rounded up to
+//    that alignment. A union has every member at 0.
+//  - Rust `#[repr(C)]` structs and unions use the same algorithm (Rust Reference, "Type layout",
+//    "#[repr(C)] Structs" / "Unions"); `packed(N)` caps each field's alignment at N and `align(N)`
+//    raises the type's (Rust Reference, "The alignment modifiers"); `#[repr(transparent)]` has the
+//    layout of its one non-zero-sized field.
+//  - GCC/clang extensions (GCC manual, "Common Type Attributes" / "Common Variable Attributes" /
+//    "Structure-Layout Pragmas"): `__attribute__((packed))` makes every member 1-aligned, a
+//    member's `aligned(N)` (and C11 `_Alignas`, C++ `alignas`) raises that member's alignment even in
+//    a packed struct, `#pragma pack(N)` caps every member's alignment at N — including one raised by
+//    `aligned` — on the System V / AAPCS targets. On x86_64-pc-windows-msvc clang follows the
+//    Microsoft layout, where an explicit member alignment (and a member type's own required
+//    alignment) wins over `#pragma pack` (from memory of clang's MicrosoftRecordLayoutBuilder;
+//    confirmed by the oracle test). A type's own `aligned(N)` raises its alignment.
+//  - Flexible array members: C11 §6.7.2.1p18 (the struct is laid out as if the member were
+//    omitted, except that the member's alignment counts). A struct with one nested in another
+//    aggregate or an array is a GCC extension: reported as not portable.
+//  - Bit-fields: the System V psABIs ("Bit-Fields") and AAPCS §8.1.8 define them for named,
+//    non-zero-width bit-fields: each goes in the next bits that do not make it straddle a boundary
+//    of its declared type's size; its declared type's alignment counts toward the aggregate's. GCC's
+//    `packed` places them at the next bit. Everything else — Microsoft bit-fields, unnamed or
+//    zero-width bit-fields, bit-fields under `#pragma pack(N>1)` — is reported as not portable
+//    rather than guessed.
+//  - Enums: see enumLayout.
 
 import type { AbiType, TypeDecl, Field } from "./types.js";
-import { pointerSize, scalarInfo, type Triple } from "./targets.js";
+import { pointerSize, scalarInfo, C_SPELLING, RUST_SPELLING, type Triple } from "./targets.js";
 import type { Model, Side } from "./boundary.js";
 
 export interface FieldLayout {
@@ -31,6 +56,13 @@ export interface Layout {
   notPortable?: string;
   /** Set when the layout is unknown (unresolved name, non-repr(C) Rust type, …). */
   unknown?: string;
+  /** The aggregate ends in a flexible array member (C11 §6.7.2.1p18). */
+  flexible?: boolean;
+  /** Microsoft layout: alignment required by an explicit `aligned`/`alignas` inside (not capped by #pragma pack). */
+  required?: number;
+  /** Microsoft layout: the type itself carries an alignment attribute, so a member of this type
+   * requires the type's whole alignment, whatever packing is in force. */
+  alignAttr?: boolean;
 }
 
 const UNKNOWN = (why: string): Layout => ({ size: 0, align: 1, unknown: why });
@@ -46,33 +78,46 @@ export interface LayoutCtx {
   depth?: number;
 }
 
-/** Enum storage per target ABI: C enums are int-sized unless a value does not fit (then the
- * compilers widen to unsigned int / long long — GCC and clang extension; MSVC keeps int). */
+const isMs = (t: Triple) => t === "x86_64-pc-windows-msvc";
+
+/**
+ * Enum storage per target ABI.
+ *  - A fixed underlying type (C23 `enum E : T`, C++11 `enum class E : T`, Rust `#[repr(u8)]`…)
+ *    is that type.
+ *  - GCC's `__attribute__((packed))` on an enum: the smallest integer type that holds every value
+ *    (GCC manual, "Common Type Attributes").
+ *  - Otherwise C enums are int-sized on all five targets (System V psABIs; AAPCS §7.1.3 leaves it
+ *    to the platform and the Linux gnueabihf platform uses int-sized enums — no -fshort-enums).
+ *    A value that does not fit int makes GCC and clang use unsigned int or a 64-bit type (GCC
+ *    manual, "Integers implementation"); Microsoft keeps int.
+ *  - Rust `#[repr(C)]` field-less enums have the size of the target C ABI's enum (Rust Reference,
+ *    "Type layout", "#[repr(C)] Field-less Enums").
+ */
 export function enumLayout(d: TypeDecl, triple: Triple): Layout {
   if (d.repr.int) {
     const s = scalarInfo(d.repr.int, triple);
-    return { size: s.size, align: s.align };
-  }
-  if (d.repr.packed) {
-    // __attribute__((packed)) on an enum: smallest integer that holds all values (GCC docs, "Common Type Attributes").
-    const vals = d.enumerators.map((e) => e.value ?? 0);
-    const min = Math.min(0, ...vals);
-    const max = Math.max(0, ...vals);
-    for (const size of [1, 2, 4, 8]) {
-      const lo = min < 0 ? -(2 ** (size * 8 - 1)) : 0;
-      const hi = min < 0 ? 2 ** (size * 8 - 1) - 1 : 2 ** (size * 8) - 1;
-      if (min >= lo && max <= hi) return { size, align: size === 8 ? scalarInfo("i64", triple).align : size };
-    }
+    return { size: s.size, align: s.align, fields: [] };
   }
   const vals = d.enumerators.map((e) => e.value ?? 0);
   const min = Math.min(0, ...vals);
   const max = Math.max(0, ...vals);
-  if (triple !== "x86_64-pc-windows-msvc" && (max > 0xffffffff || min < -0x80000000 || (min < 0 && max > 0x7fffffff))) {
-    const s = scalarInfo("llong", triple);
-    return { size: 8, align: s.align };
+  if (d.repr.packed && d.lang !== "rust") {
+    for (const size of [1, 2, 4, 8]) {
+      const lo = min < 0 ? -(2 ** (size * 8 - 1)) : 0;
+      const hi = min < 0 ? 2 ** (size * 8 - 1) - 1 : 2 ** (size * 8) - 1;
+      if (min >= lo && max <= hi) return { size, align: size === 8 ? scalarInfo("i64", triple).align : size, fields: [] };
+    }
   }
-  return { size: 4, align: 4 };
+  if (!isMs(triple) && (max > 0xffffffff || min < -0x80000000 || (min < 0 && max > 0x7fffffff))) {
+    const s = scalarInfo("llong", triple);
+    return { size: 8, align: s.align, fields: [] };
+  }
+  return { size: 4, align: 4, fields: [] };
 }
+
+/** Layouts of declarations, per model (a model never changes after it is built). */
+const cache = new WeakMap<Model, Map<string, Layout>>();
+const inProgress = new Set<string>();
 
 export function layoutOf(t: AbiType, ctx: LayoutCtx): Layout {
   const depth = ctx.depth ?? 0;
@@ -97,8 +142,12 @@ export function layoutOf(t: AbiType, ctx: LayoutCtx): Layout {
     case "array": {
       const el = layoutOf(t.of, { ...ctx, depth: depth + 1 });
       if (el.unknown) return el;
-      if (t.len === null) return { size: 0, align: el.align, notPortable: t.lenText ? `array length \`${t.lenText}\` is not a constant ferrule can evaluate` : undefined, unknown: t.lenText ? "array length unknown" : undefined };
-      return { size: el.size * t.len, align: el.align, notPortable: el.notPortable };
+      if (t.len === null) {
+        if (t.lenText) return { size: 0, align: el.align, unknown: `array length \`${t.lenText}\` is not a constant ferrule can evaluate` };
+        return { size: 0, align: el.align, flexible: true, required: el.required };
+      }
+      if (el.flexible) return { size: el.size * t.len, align: el.align, notPortable: "an array of a struct that ends in a flexible array member (GCC extension)" };
+      return { size: el.size * t.len, align: el.align, notPortable: el.notPortable, required: el.required, alignAttr: el.alignAttr };
     }
     case "named": {
       const r = ctx.model.resolve(t, ctx.side);
@@ -114,11 +163,38 @@ export function layoutOf(t: AbiType, ctx: LayoutCtx): Layout {
   }
 }
 
+/** Layout of one declaration on one target (cached per model). */
 export function declLayout(d: TypeDecl, ctx: LayoutCtx): Layout {
+  const key = `${d.id}|${ctx.triple}`;
+  let m = cache.get(ctx.model);
+  if (!m) cache.set(ctx.model, (m = new Map()));
+  const hit = m.get(key);
+  if (hit) return hit;
+  if (inProgress.has(key)) return UNKNOWN(`\`${d.name}\` contains itself`);
+  inProgress.add(key);
+  let l: Layout;
+  try {
+    l = computeDecl(d, ctx);
+  } finally {
+    inProgress.delete(key);
+  }
+  m.set(key, l);
+  return l;
+}
+
+function computeDecl(d: TypeDecl, ctx: LayoutCtx): Layout {
   const side: Side = d.lang === "rust" ? "rust" : "c";
   const c2 = { ...ctx, side };
   if (d.kind === "opaque") return UNKNOWN(`\`${d.name}\` is opaque (no body)`);
-  if (d.kind === "alias") return d.aliasOf ? layoutOf(d.aliasOf, c2) : UNKNOWN("alias without target");
+  if (d.kind === "alias") {
+    if (!d.aliasOf) return UNKNOWN("alias without target");
+    const l = layoutOf(d.aliasOf, c2);
+    // `typedef T name __attribute__((aligned(N)))` sets the alignment of the typedef (GCC manual,
+    // "Common Type Attributes": on a typedef it may also decrease it).
+    if (d.lang !== "rust" && d.repr.align && !l.unknown) return { ...l, align: d.repr.align, alignAttr: isMs(ctx.triple) || undefined };
+    return l;
+  }
+  if (d.generic) return UNKNOWN(`\`${d.name}\` is generic; its layout depends on the type arguments`);
   if (d.kind === "enum") {
     if (d.lang === "rust" && !d.repr.c && !d.repr.int) return UNKNOWN(`\`${d.name}\` has no #[repr(C)] or #[repr(int)], so its layout is unspecified`);
     if ((d as TypeDecl & { dataCarrying?: boolean }).dataCarrying) return UNKNOWN(`\`${d.name}\` carries data; ferrule does not model tagged-union enums`);
@@ -128,125 +204,219 @@ export function declLayout(d: TypeDecl, ctx: LayoutCtx): Layout {
     return UNKNOWN(`\`${d.name}\` is not #[repr(C)], so Rust may reorder its fields`);
   }
   if (d.repr.transparent) {
-    const nonZst = d.fields.map((f) => layoutOf(f.type, c2)).filter((l) => l.size > 0 || l.unknown);
-    if (nonZst.length === 1) return { ...nonZst[0]!, fields: undefined };
-    return UNKNOWN(`#[repr(transparent)] \`${d.name}\` must have exactly one non-zero-sized field`);
+    const ls = d.fields.map((f) => layoutOf(f.type, c2));
+    const bad = ls.find((l) => l.unknown);
+    if (bad) return UNKNOWN(bad.unknown!);
+    const idx = ls.map((l, i) => (l.size > 0 ? i : -1)).filter((i) => i >= 0);
+    if (idx.length > 1) return UNKNOWN(`#[repr(transparent)] \`${d.name}\` has more than one non-zero-sized field`);
+    const i = idx[0] ?? 0;
+    const inner = ls[i] ?? { size: 0, align: 1 };
+    const f = d.fields[i];
+    return { size: inner.size, align: inner.align, fields: f ? [{ name: f.name, offset: 0, size: inner.size, align: inner.align }] : [], holes: [], notPortable: inner.notPortable };
   }
   return d.kind === "union" ? unionLayout(d, c2) : structLayout(d, c2);
 }
 
-function fieldAlignAttr(f: Field): number | undefined {
+/** Explicit alignment written on a member: `aligned(N)`, `_Alignas(N)`, `alignas(N)` (largest wins). */
+export function fieldAlignAttr(f: Field): number | undefined {
   const attrs = (f as Field & { attrs?: string[] }).attrs ?? [];
   let a: number | undefined;
   for (const t of attrs) {
-    const m = /\b(?:__aligned__|aligned|_Alignas|alignas)\s*\(\s*(\d+)\s*\)/.exec(t);
-    if (m) a = Math.max(a ?? 0, Number(m[1]));
+    // attribute argument text is opaque to the grammar; reading the number from it is allowed
+    for (const m of t.matchAll(/\b(?:__aligned__|aligned|_Alignas|alignas)\s*\(\s*(\d+)\s*\)/g)) a = Math.max(a ?? 0, Number(m[1]));
   }
   return a;
 }
 
-function memberPack(d: TypeDecl): number | undefined {
-  const p = [d.repr.packed, d.pragmaPack].filter((x): x is number => typeof x === "number" && x > 0);
-  return p.length ? Math.min(...p) : undefined;
+interface Packing {
+  /** GCC `packed` on the type (C), or Rust `packed` = `packed(1)`. */
+  attrPacked: boolean;
+  /** `#pragma pack(N)` in force (C) or Rust `packed(N)`: caps member alignment. */
+  cap?: number;
+}
+
+function packingOf(d: TypeDecl): Packing {
+  if (d.lang === "rust") {
+    // Rust Reference, "The alignment modifiers": packed(N) sets each field's alignment to min(its own, N).
+    return { attrPacked: false, cap: d.repr.packed };
+  }
+  return { attrPacked: d.repr.packed === 1, cap: d.pragmaPack && d.pragmaPack > 0 ? d.pragmaPack : undefined };
+}
+
+/** The alignment a member gets inside `d` on this target, from its natural alignment. */
+function memberAlign(natural: Layout, f: Field, p: Packing, triple: Triple): { align: number; required: number } {
+  const explicit = fieldAlignAttr(f) ?? 0;
+  if (isMs(triple)) {
+    // Microsoft layout: pack caps the natural alignment, `packed` makes it 1, an explicit
+    // alignment (on the member or required by its type) wins over both.
+    let a = natural.align;
+    if (p.cap !== undefined) a = Math.min(a, p.cap);
+    if (p.attrPacked) a = 1;
+    // A member whose type carries an alignment attribute requires that type's whole alignment
+    // (clang: ASTContext::isAlignmentRequired in the Microsoft record layout).
+    const req = Math.max(explicit, natural.required ?? 0, natural.alignAttr ? natural.align : 0);
+    return { align: Math.max(a, req), required: req };
+  }
+  // System V / AAPCS (GCC and clang): `packed` makes it 1, an explicit member alignment raises
+  // it, `#pragma pack(N)` caps the result.
+  let a = p.attrPacked ? 1 : natural.align;
+  a = Math.max(a, explicit);
+  if (p.cap !== undefined) a = Math.min(a, p.cap);
+  return { align: a, required: 0 };
+}
+
+function describeField(f: Field): string {
+  return f.name || "(anonymous member)";
 }
 
 function structLayout(d: TypeDecl, ctx: LayoutCtx): Layout {
-  const pack = memberPack(d);
+  if (d.fields.some((f) => f.bits !== undefined)) return bitfieldStructLayout(d, ctx);
+  const p = packingOf(d);
   let offset = 0;
   let align = 1;
+  let required = 0;
+  let notPortable: string | undefined;
+  let flexible = false;
   const fields: FieldLayout[] = [];
   const holes: [number, number][] = [];
-  if (d.fields.some((f) => f.bits !== undefined)) {
-    return bitfieldStructLayout(d, ctx);
-  }
   for (let i = 0; i < d.fields.length; i++) {
     const f = d.fields[i]!;
     const l = layoutOf(f.type, ctx);
-    if (l.unknown && !(f.type.k === "array" && f.type.len === null)) return UNKNOWN(`field \`${f.name}\`: ${l.unknown}`);
-    let a = l.align;
-    const fa = fieldAlignAttr(f);
-    if (pack !== undefined) a = Math.min(a, pack);
-    if (fa) a = Math.max(a, fa);
-    const at = roundUp(offset, a);
+    if (l.unknown) return UNKNOWN(`field \`${describeField(f)}\`: ${l.unknown}`);
+    if (l.notPortable) notPortable ??= `field \`${describeField(f)}\`: ${l.notPortable}`;
+    const isFlexArray = f.type.k === "array" && f.type.len === null;
+    if (isFlexArray && i !== d.fields.length - 1) return UNKNOWN(`field \`${describeField(f)}\` has no array length but is not the last member`);
+    if (l.flexible && !isFlexArray) notPortable ??= `field \`${describeField(f)}\` is a struct ending in a flexible array member (GCC extension)`;
+    const m = memberAlign(l, f, p, ctx.triple);
+    const at = roundUp(offset, m.align);
     if (at > offset) holes.push([offset, at - offset]);
-    const isFlex = f.type.k === "array" && f.type.len === null;
-    if (isFlex && i !== d.fields.length - 1) return UNKNOWN(`field \`${f.name}\` has an unknown array length`);
-    fields.push({ name: f.name, offset: at, size: isFlex ? 0 : l.size, align: a });
-    offset = at + (isFlex ? 0 : l.size);
-    align = Math.max(align, a);
+    fields.push({ name: f.name, offset: at, size: l.size, align: m.align });
+    offset = at + l.size;
+    align = Math.max(align, m.align);
+    required = Math.max(required, m.required);
+    if (isFlexArray) flexible = true;
   }
-  if (d.repr.align) align = Math.max(align, d.repr.align);
+  if (d.repr.align) {
+    align = Math.max(align, d.repr.align);
+    required = Math.max(required, d.repr.align);
+  }
   const size = roundUp(offset, align);
   if (size > offset) holes.push([offset, size - offset]);
-  return { size, align, fields, holes };
+  const out: Layout = { size, align, fields, holes };
+  if (notPortable) out.notPortable = notPortable;
+  if (flexible) out.flexible = true;
+  if (required && isMs(ctx.triple)) out.required = required;
+  if (d.repr.align && d.lang !== "rust" && isMs(ctx.triple)) out.alignAttr = true;
+  return out;
 }
 
 function unionLayout(d: TypeDecl, ctx: LayoutCtx): Layout {
-  const pack = memberPack(d);
+  if (d.fields.some((f) => f.bits !== undefined)) {
+    if (isMs(ctx.triple)) return { size: 0, align: 1, fields: [], notPortable: `\`${d.name}\` has bit-fields; their layout on ${ctx.triple} follows Microsoft rules ferrule does not model` };
+  }
+  const p = packingOf(d);
   let size = 0;
   let align = 1;
+  let required = 0;
+  let notPortable: string | undefined;
   const fields: FieldLayout[] = [];
   for (const f of d.fields) {
     const l = layoutOf(f.type, ctx);
-    if (l.unknown) return UNKNOWN(`field \`${f.name}\`: ${l.unknown}`);
-    let a = l.align;
-    const fa = fieldAlignAttr(f);
-    if (pack !== undefined) a = Math.min(a, pack);
-    if (fa) a = Math.max(a, fa);
-    fields.push({ name: f.name, offset: 0, size: l.size, align: a });
-    size = Math.max(size, l.size);
-    align = Math.max(align, a);
+    if (l.unknown) return UNKNOWN(`field \`${describeField(f)}\`: ${l.unknown}`);
+    if (l.notPortable) notPortable ??= `field \`${describeField(f)}\`: ${l.notPortable}`;
+    if (l.flexible) notPortable ??= `field \`${describeField(f)}\` has a flexible array member inside a union (GCC extension)`;
+    const m = memberAlign(l, f, p, ctx.triple);
+    const bytes = f.bits !== undefined ? Math.ceil(f.bits / 8) : l.size;
+    const fl: FieldLayout = { name: f.name, offset: 0, size: l.size, align: m.align };
+    if (f.bits !== undefined) {
+      fl.bits = f.bits;
+      fl.bitOffset = 0;
+    }
+    fields.push(fl);
+    size = Math.max(size, bytes);
+    align = Math.max(align, m.align);
+    required = Math.max(required, m.required);
   }
-  if (d.repr.align) align = Math.max(align, d.repr.align);
+  if (d.repr.align) {
+    align = Math.max(align, d.repr.align);
+    required = Math.max(required, d.repr.align);
+  }
   const total = roundUp(size, align);
-  return { size: total, align, fields, holes: total > size ? [[size, total - size]] : [] };
+  const out: Layout = { size: total, align, fields, holes: total > size ? [[size, total - size]] : [] };
+  if (notPortable) out.notPortable = notPortable;
+  if (required && isMs(ctx.triple)) out.required = required;
+  if (d.repr.align && d.lang !== "rust" && isMs(ctx.triple)) out.alignAttr = true;
+  return out;
 }
 
 /**
- * Bit-field layout. System V (x86_64, i386) and AAPCS/AAPCS64 allocate a bit-field in the next
- * bits that do not make it cross a boundary of its declared type's alignment unit; a zero-width
- * bit-field moves to the next such boundary; the declared type's alignment counts toward the
- * struct's alignment (AAPCS §8.1.8; SysV psABI "Bit-Fields"). Microsoft x64 packs bit-fields of the
- * same declared type into one unit and starts a new unit when the type size changes; ferrule does
- * not model that and reports it as not portable.
+ * Bit-field layout (System V psABIs "Bit-Fields"; AAPCS §8.1.8): a bit-field goes in the next bits
+ * unless it would straddle a boundary of its declared type's size, in which case it starts at the
+ * next such boundary; its declared type's alignment counts toward the aggregate's. With GCC's
+ * `packed` (and Rust has no bit-fields) it goes at the very next bit. See the header comment for
+ * what is reported as not portable.
  */
 function bitfieldStructLayout(d: TypeDecl, ctx: LayoutCtx): Layout {
-  if (ctx.triple === "x86_64-pc-windows-msvc") {
-    return { size: 0, align: 1, notPortable: `\`${d.name}\` has bit-fields; their layout on ${ctx.triple} follows Microsoft rules ferrule does not model` };
-  }
-  const pack = memberPack(d);
+  const np = (why: string): Layout => ({ size: 0, align: 1, fields: [], notPortable: `\`${d.name}\` ${why}` });
+  if (isMs(ctx.triple)) return np(`has bit-fields; their layout on ${ctx.triple} follows Microsoft rules ferrule does not model`);
+  const p = packingOf(d);
+  if (p.cap !== undefined) return np("has bit-fields under #pragma pack; GCC and clang place them by rules no ABI document fixes");
+  if (d.fields.some((f) => f.bits !== undefined && (f.bits === 0 || !f.name))) return np("has an unnamed or zero-width bit-field; ferrule does not model how each ABI aligns around it");
   let bit = 0;
   let align = 1;
   const fields: FieldLayout[] = [];
+  const holes: [number, number][] = [];
+  let notPortable: string | undefined;
   for (const f of d.fields) {
     const l = layoutOf(f.type, ctx);
-    if (l.unknown) return UNKNOWN(`field \`${f.name}\`: ${l.unknown}`);
-    let a = l.align;
-    if (pack !== undefined) a = Math.min(a, pack);
-    const fa = fieldAlignAttr(f);
-    if (fa) a = Math.max(a, fa);
+    if (l.unknown) return UNKNOWN(`field \`${describeField(f)}\`: ${l.unknown}`);
+    if (l.notPortable) notPortable ??= `field \`${describeField(f)}\`: ${l.notPortable}`;
+    const m = memberAlign(l, f, p, ctx.triple);
     if (f.bits === undefined) {
-      const at = roundUp(Math.ceil(bit / 8), a);
-      fields.push({ name: f.name, offset: at, size: l.size, align: a });
+      const start = Math.ceil(bit / 8);
+      const at = roundUp(start, m.align);
+      if (at > start) holes.push([start, at - start]);
+      fields.push({ name: f.name, offset: at, size: l.size, align: m.align });
       bit = (at + l.size) * 8;
-      align = Math.max(align, a);
+      align = Math.max(align, m.align);
       continue;
     }
-    const unitBits = l.size * 8;
-    if (f.bits === 0) {
-      bit = roundUp(bit, (pack !== undefined ? Math.min(l.align, pack) : l.align) * 8);
-      continue;
+    if (f.bits > l.size * 8) return np(`has a bit-field \`${f.name}\` wider than its type`);
+    if (fieldAlignAttr(f)) return np(`has an aligned bit-field \`${f.name}\``);
+    if (!p.attrPacked) {
+      // A bit-field may not span more units of its type's alignment than the type itself does
+      // (GCC's rule, which implements the psABIs' "must not straddle its type's boundary"; it
+      // differs only where alignment < size: long long on i686, 4-byte aligned, may start at any
+      // bit of a 4-byte unit as long as it covers at most two of them).
+      const unit = l.align * 8;
+      const maxUnits = l.size / l.align;
+      const within = bit % unit;
+      if (Math.ceil((within + f.bits) / unit) > maxUnits) bit = bit - within + unit;
     }
-    if (pack === undefined) {
-      const unitStart = Math.floor(bit / unitBits) * unitBits;
-      if (bit + f.bits > unitStart + unitBits) bit = unitStart + unitBits;
-    }
-    fields.push({ name: f.name, offset: Math.floor(bit / 8), size: l.size, align: a, bitOffset: bit, bits: f.bits });
+    fields.push({ name: f.name, offset: Math.floor(bit / 8), size: l.size, align: m.align, bitOffset: bit, bits: f.bits });
     bit += f.bits;
-    // Unnamed bit-fields do not affect the alignment of the struct (SysV psABI).
-    if (f.name) align = Math.max(align, a);
+    align = Math.max(align, m.align);
   }
   if (d.repr.align) align = Math.max(align, d.repr.align);
   const bytes = Math.ceil(bit / 8);
-  return { size: roundUp(bytes, align), align, fields };
+  const size = roundUp(bytes, align);
+  if (size > bytes) holes.push([bytes, size - bytes]);
+  const out: Layout = { size, align, fields, holes };
+  if (notPortable) out.notPortable = notPortable;
+  return out;
+}
+
+/** The type of a field as its own language spells it (for messages and tables). */
+export function spellType(t: AbiType, lang: "rust" | "c"): string {
+  switch (t.k) {
+    case "void": return lang === "rust" ? "()" : "void";
+    case "scalar": return lang === "rust" ? RUST_SPELLING[t.s] : C_SPELLING[t.s];
+    case "complex": return lang === "rust" ? `[${t.of === "float" ? "f32" : "f64"}; 2]` : `${t.of} _Complex`;
+    case "ptr": return lang === "rust" ? `*${t.mut ? "mut" : "const"} ${spellType(t.to, lang)}` : `${spellType(t.to, lang)} *`;
+    case "array": return lang === "rust" ? `[${spellType(t.of, lang)}; ${t.len ?? t.lenText ?? "?"}]` : `${spellType(t.of, lang)}[${t.len ?? t.lenText ?? ""}]`;
+    case "named": return lang === "c" && t.tag && t.tag !== "enum" ? `${t.tag} ${t.name}` : t.name;
+    case "fn": return lang === "rust" ? "extern fn" : "function pointer";
+    case "unsafe": return t.text;
+    case "unknown": return t.text;
+  }
 }
