@@ -4,6 +4,8 @@
 use core::ffi::{c_int, c_void};
 use core::slice;
 
+mod detector;
+
 /// Filter state kept on the Rust side behind an opaque handle.
 pub struct SonarFir {
     taps: Vec<f32>,
