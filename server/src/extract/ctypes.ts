@@ -38,8 +38,7 @@ export interface DeclCtx {
 }
 
 function hasConst(n: Node): boolean {
-  for (let i = 0; i < n.childCount; i++) {
-    const c = n.child(i)!;
+  for (const c of n.children) {
     if (c.type === "type_qualifier" && /\bconst\b/.test(c.text)) return true;
   }
   return false;
@@ -57,8 +56,7 @@ export function typeFromSpecifier(spec: Node | null, ctx: DeclCtx): AbiType {
   if (t === "sized_type_specifier") {
     const words: string[] = [];
     let complex = false;
-    for (let i = 0; i < spec.childCount; i++) {
-      const c = spec.child(i)!;
+    for (const c of spec.children) {
       if (c.text === "_Complex" || c.text === "__complex__") complex = true;
       else words.push(c.text);
     }

@@ -19,8 +19,50 @@ export function initParsers(): Promise<void> {
       p.setLanguage(lang);
       parsers.set(g, p);
     }
+    const probe = parsers.get("c")!.parse("");
+    memoiseNodeGetters(Object.getPrototypeOf(probe.rootNode) as object);
+    probe.delete();
   })();
   return ready;
+}
+
+/**
+ * Memoises the read-only getters of syntax nodes. Each web-tree-sitter getter crosses into wasm
+ * on every access (and `type`, `text`, `childForFieldName` are asked many times per node by the
+ * extractors); a node's answers never change because ferrule never edits a tree in place (it
+ * re-parses), so the first answer is kept on the node object. Measured: scripts/bench.mjs.
+ */
+function memoiseNodeGetters(proto: object): void {
+  const p = proto as Record<string, unknown> & { __ferruleMemo?: boolean };
+  if (p.__ferruleMemo) return;
+  p.__ferruleMemo = true;
+  for (const name of ["typeId", "endIndex", "endPosition", "childCount", "namedChildCount", "isNamed", "hasError", "isMissing", "text", "parent"]) {
+    const d = Object.getOwnPropertyDescriptor(proto, name);
+    if (!d?.get) continue;
+    const orig = d.get;
+    const slot = `_m_${name}`;
+    Object.defineProperty(proto, name, {
+      configurable: true,
+      get(this: Record<string, unknown>) {
+        let v = this[slot];
+        if (v === undefined) this[slot] = v = orig.call(this);
+        return v;
+      },
+    });
+  }
+  const byField = p.childForFieldId as ((id: number) => unknown) | undefined;
+  if (typeof byField === "function") {
+    Object.defineProperty(proto, "childForFieldId", {
+      configurable: true,
+      writable: true,
+      value(this: { _m_fields?: Map<number, unknown> }, id: number) {
+        const m = (this._m_fields ??= new Map());
+        let v = m.get(id);
+        if (v === undefined) m.set(id, (v = byField.call(this, id)));
+        return v;
+      },
+    });
+  }
 }
 
 export function isReady(): boolean {
