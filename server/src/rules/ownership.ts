@@ -489,6 +489,9 @@ function checkPanics(model: Model, out: Finding[]): void {
 
 interface CIndex {
   flows: CFlow[];
+  byClass: Map<string, CFlow[]>;
+  sources: Map<string, Map<string, { src: CtorInfo; range: Range; deleterArg?: string }>>;
+  fieldNames: Map<string, Set<string>>;
   classes: Map<string, CClass[]>;
   /** C/C++ helper functions that pass parameter i to a Rust releaser. */
   helperRel: Map<string, { param: number; rel: RelInfo }[]>;
@@ -530,7 +533,9 @@ function cIndex(model: Model, om: OwnershipModel): CIndex {
       if (e.k === "return" && e.arg?.call && om.ctors.has(e.arg.call) && !fl.className) helperCtor.set(fl.name, om.ctors.get(e.arg.call)!);
     }
   }
-  return { flows, classes, helperRel, helperCtor };
+  const byClass = new Map<string, CFlow[]>();
+  for (const fl of flows) if (fl.className) byClass.set(fl.className, [...(byClass.get(fl.className) ?? []), fl]);
+  return { flows, byClass, sources: new Map(), fieldNames: new Map(), classes, helperRel, helperCtor };
 }
 
 const FREE_FNS = new Set(["free", "std::free", "::free", "g_free", "cfree"]);
@@ -600,15 +605,22 @@ function checkUniquePtr(up: UniquePtrDecl, src: CtorInfo | undefined, srcRange: 
 }
 
 function classFields(ci: CIndex, name: string | undefined): Set<string> {
-  const s = new Set<string>();
-  if (!name) return s;
-  for (const c of ci.classes.get(name) ?? []) for (const f of c.fields) s.add(f.name);
+  if (!name) return new Set();
+  let s = ci.fieldNames.get(name);
+  if (!s) {
+    s = new Set<string>();
+    for (const c of ci.classes.get(name) ?? []) for (const f of c.fields) s.add(f.name);
+    ci.fieldNames.set(name, s);
+  }
   return s;
 }
 
 /** Class-level sources of each field: `this.f` → constructor that fills it. */
 function fieldSources(ci: CIndex, om: OwnershipModel, cls: string): Map<string, { src: CtorInfo; range: Range; deleterArg?: string }> {
+  const hit = ci.sources.get(cls);
+  if (hit) return hit;
   const m = new Map<string, { src: CtorInfo; range: Range; deleterArg?: string }>();
+  ci.sources.set(cls, m);
   const fields = classFields(ci, cls);
   for (const c of ci.classes.get(cls) ?? []) {
     for (const f of c.fields) {
@@ -616,8 +628,7 @@ function fieldSources(ci: CIndex, om: OwnershipModel, cls: string): Map<string, 
       if (s) m.set(f.name, { src: s, range: f.range });
     }
   }
-  for (const fl of ci.flows) {
-    if (fl.className !== cls) continue;
+  for (const fl of ci.byClass.get(cls) ?? []) {
     for (const e of fl.events) {
       if (e.k !== "assign" || !e.rhs) continue;
       const s = ctorFor(om, ci, e.rhs.call);
@@ -753,7 +764,7 @@ function releasedFields(ci: CIndex, om: OwnershipModel, cls: string, fl: CFlow, 
       const k = keyOf(a.ref, fl, fields);
       if (k.startsWith("this.")) m.set(k.slice(5), { range: e.range, by: e.callee });
     }
-    const own2 = ci.flows.find((f) => f.className === cls && f.name === e.callee && f !== fl);
+    const own2 = (ci.byClass.get(cls) ?? []).find((f) => f.name === e.callee && f !== fl);
     if (own2) for (const [k, v] of releasedFields(ci, om, cls, own2, fields, depth + 1)) if (!m.has(k)) m.set(k, v);
   }
   return m;
@@ -766,7 +777,7 @@ function checkClasses(model: Model, om: OwnershipModel, ci: CIndex, out: Finding
     const cls = decls.find((c) => c.members.length || c.fields.length) ?? decls[0]!;
     const fields = classFields(ci, name);
     const srcs = fieldSources(ci, om, name);
-    const flows = ci.flows.filter((f) => f.className === name);
+    const flows = ci.byClass.get(name) ?? [];
     const members = decls.flatMap((d) => d.members);
     for (const f of flows) if (f.member && !members.some((m) => m.range.file === f.range.file && m.range.line === f.range.line)) members.push({ kind: f.member, state: f.state, name: f.name, range: f.range, nameRange: f.nameRange });
 

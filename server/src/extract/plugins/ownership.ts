@@ -521,23 +521,36 @@ function functionDeclarator(d: Node | null | undefined): Node | undefined {
   return undefined;
 }
 
+const EXIT_STMTS = new Set(["return_statement", "throw_statement", "break_statement", "continue_statement"]);
+/** Per block (by node id): index of its last return/throw/break/continue statement, and each statement's index. */
+let exitCache = new Map<number, { lastExit: number; index: Map<number, number> }>();
+
 function exitsAfter(n: Node): boolean {
-  // Does the statement containing `n` sit in a block whose remaining statements include a return/throw/break/continue?
+  // Does the statement containing `n` sit in a nested block (an if/else branch, a loop body)
+  // whose later statements return, throw, break or continue? Then the release does not reach
+  // the code after the block.
   let stmt: Node | null = n;
   while (stmt && stmt.parent && stmt.parent.type !== "compound_statement") {
     if (stmt.parent.type === "function_definition") return false;
     stmt = stmt.parent;
   }
-  if (!stmt?.parent) return false;
+  const block = stmt?.parent;
+  if (!stmt || !block) return false;
   // the function's own block: a final `return` does not make the release conditional
-  if (stmt.parent.parent?.type === "function_definition") return false;
-  let s = stmt.nextNamedSibling;
-  for (; s; s = s.nextNamedSibling) {
-    if (["return_statement", "throw_statement", "break_statement", "continue_statement"].includes(s.type)) return true;
-    if (s.type === "expression_statement" && s.namedChild(0)?.type === "throw_expression") return true;
+  if (block.parent?.type === "function_definition") return false;
+  let info = exitCache.get(block.id);
+  if (!info) {
+    info = { lastExit: -1, index: new Map() };
+    const kids = block.namedChildren;
+    for (let i = 0; i < kids.length; i++) {
+      const k = kids[i]!;
+      info.index.set(k.id, i);
+      if (EXIT_STMTS.has(k.type) || (k.type === "expression_statement" && k.namedChild(0)?.type === "throw_expression")) info.lastExit = i;
+    }
+    exitCache.set(block.id, info);
   }
-  // the block of a branch (if body / else) that falls through the end is not an exit
-  return false;
+  const i = info.index.get(stmt.id);
+  return i !== undefined && i < info.lastExit;
 }
 
 function extractFlow(def: Node, file: string, className: string | undefined, out: CFlow[]): CFlow | undefined {
@@ -754,6 +767,7 @@ function extractClass(spec: Node, file: string, flows: CFlow[]): CClass | undefi
 }
 
 function extractCFile(root: Node, facts: FileFacts): void {
+  exitCache = new Map();
   const file = facts.file;
   const flows: CFlow[] = [];
   const classes: CClass[] = [];
@@ -780,6 +794,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   facts.classes.push(...classes);
   const own: COwnFacts = { flows };
   facts.extra.ownership = own;
+  exitCache = new Map();
 }
 
 function safely<A extends unknown[]>(f: (...a: A) => void): (...a: A) => void {
