@@ -35,7 +35,7 @@ describe("ferrule check on the demo", () => {
     const RS = "test-fixtures/sonar-demo/kernels/src/lib.rs";
     // 1: double *output vs *mut f32
     const p1 = find("param-type-mismatch", H, 19);
-    expect(p1?.related[0]).toMatchObject({ file: RS, line: 26 });
+    expect(p1?.related[0]).toMatchObject({ file: RS, line: 29 });
     // 2: long vs i64 on the three targets where long is 4 bytes
     const p2 = find("param-type-mismatch", H, 26);
     expect(p2?.message).toContain("armv7, i686, x86_64-windows only");
@@ -43,10 +43,10 @@ describe("ferrule check on the demo", () => {
     // 3: const spectrum written by Rust
     expect(find("pointer-constness", H, 24)?.related[0]).toMatchObject({ file: RS });
     // 4: no #[no_mangle]
-    expect(find("export-name-mangled", RS, 78)?.related[0]).toMatchObject({ file: H, line: 27 });
+    expect(find("export-name-mangled", RS, 81)?.related[0]).toMatchObject({ file: H, line: 27 });
     // 5: renamed on one side
     expect(find("no-definition", H, 20)).toBeTruthy();
-    expect(find("no-c-declaration", RS, 43)).toBeTruthy();
+    expect(find("no-c-declaration", RS, 46)).toBeTruthy();
     // 6: nullable callback
     expect(find("callback-mismatch", H, 28)?.severity).toBe("warning");
   });
@@ -130,7 +130,7 @@ describe("usage and configuration errors exit 2 with one line", () => {
   test(".ferrule.toml targets and severity overrides apply", () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-cfg-"));
     fs.cpSync(path.join(ROOT, "test-fixtures/sonar-demo"), dir, { recursive: true });
-    fs.writeFileSync(path.join(dir, ".ferrule.toml"), 'targets = ["x86_64"]\n[rules]\nparam-type-mismatch = "off"\npointer-constness = "warning"\nexport-name-mangled = "off"\n');
+    fs.writeFileSync(path.join(dir, ".ferrule.toml"), 'targets = ["x86_64"]\n[rules]\nparam-type-mismatch = "off"\npointer-constness = "warning"\nexport-name-mangled = "off"\nport-item-size-mismatch = "off"\nlength-unit-mismatch = "off"\n');
     const r = ferrule(["check", "--format", "json", dir]);
     const j = JSON.parse(r.out);
     expect(j.findings.some((f: { rule: string }) => f.rule === "param-type-mismatch")).toBe(false);

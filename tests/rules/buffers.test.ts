@@ -134,3 +134,14 @@ describe("port settings", () => {
     expect(got(findings)).toEqual([]);
   });
 });
+
+describe("the demo workspace", () => {
+  it("reports the planted complex-vs-float port slip and the bytes-as-items slip, and not the correct interleaved call", async () => {
+    const demo = path.join(__dirname, "..", "..", "test-fixtures", "sonar-demo");
+    const { findings } = await run(demo);
+    const mine = got(findings);
+    expect(mine).toEqual(["length-unit-mismatch blocks/spectrum_block.cc:24", "port-item-size-mismatch blocks/spectrum_block.cc:18"]);
+    const unit = findings.find((f) => f.rule === "length-unit-mismatch")!;
+    expect(unit.message).toContain("from `from_raw_parts(power, n)` at spectrum.rs:21");
+  });
+});

@@ -362,7 +362,10 @@ function checkCalls(model: Model, out: Finding[]): void {
             const la = cs.args[pair.lenParam];
             const lt = la && lenTerm(la.expr, undefined, 0, true);
             const ratio = S / A;
-            const scaled = lt && Math.abs((numPart(model, lt, "c") ?? 1) - ratio) < 1e-9;
+            // The kernel may scale the count itself (`from_raw_parts(x, 2 * nbins)`): compare the
+            // number of parameter items actually read, argument factor × contract factor.
+            const eff = lt ? (numPart(model, lt, "c") ?? 1) * pair.len.coef : 0;
+            const scaled = lt && Math.abs(eff % ratio) < 1e-9 && eff >= ratio;
             if (la && !scaled && ratio > 1 && Number.isInteger(ratio)) {
               out.push(finding(ITEM_SIZE, a.range, `\`${a.text}\` is a buffer of ${typeText(pointee(model, from, "c")!)} (${S}-byte items) passed as ${typeText(pt)} (${P}-byte items), but the count \`${la.text}\` is not scaled by ${ratio}: ${pairText(pair, decl)}; pass \`${ratio} * ${la.text}\``, rel(pair)));
             }
@@ -583,7 +586,8 @@ function checkWork(model: Model, calls: CallSite[], sc: CFnScope, ports: Port[],
         ok = uses.every((u) => {
           const la = u.P?.lenParam !== undefined ? u.cs.args[u.P.lenParam] : undefined;
           const lt = la && lenTerm(la.expr, undefined, 0, true);
-          return !!lt && Math.abs((numPart(model, lt, "c") ?? 0) % ratio) < 1e-9 && (numPart(model, lt, "c") ?? 0) >= ratio;
+          const eff = lt ? (numPart(model, lt, "c") ?? 0) * (u.P?.len.coef ?? 1) : 0;
+          return !!lt && Math.abs(eff % ratio) < 1e-9 && eff >= ratio;
         });
       }
       if (!ok) {
@@ -600,7 +604,7 @@ function checkWork(model: Model, calls: CallSite[], sc: CFnScope, ports: Port[],
       const la = u.cs.args[u.P.lenParam];
       const lt = la && lenTerm(la.expr, undefined, 0, true);
       if (!la || !lt) continue;
-      const mentions = vnames.every((vn) => lt.names.includes(vn) || u.cs.args.some((a, i) => i !== u.pi && exprMentions(a.expr, vn)));
+      const mentions = vnames.every((vn) => lt.names.includes(vn) || u.cs.args.some((a) => exprMentions(a.expr, vn, sc, u.cs.range.line)));
       if (mentions) continue;
       const key = `${la.range.file}:${la.range.line}:${la.range.col}`;
       if (reported.has(key)) continue;
@@ -610,13 +614,20 @@ function checkWork(model: Model, calls: CallSite[], sc: CFnScope, ports: Port[],
   }
 }
 
-function exprMentions(e: Expr, name: string): boolean {
+/** Whether `e` mentions `name` (or a member spelled `name_`), also through local initialisers. */
+function exprMentions(e: Expr, name: string, sc?: CFnScope, line = Infinity, depth = 0): boolean {
+  if (depth > 8) return false;
+  const r = (x: Expr) => exprMentions(x, name, sc, line, depth + 1);
   switch (e.k) {
-    case "ident": return e.name === name || e.name.endsWith(name) || name.endsWith(e.name.replace(/_$/, "")) && e.name.length > 2;
-    case "bin": return exprMentions(e.l, name) || exprMentions(e.r, name);
-    case "un": return exprMentions(e.e, name);
-    case "cast": return exprMentions(e.e, name);
-    case "call": return e.args.some((a) => exprMentions(a, name));
+    case "ident": {
+      if (e.name === name || e.name.replace(/_$/, "") === name || e.name.replace(/^m_/, "") === name) return true;
+      const v = varOf(sc, e.name, line);
+      return !!v && v.kind === "local" && !!v.init && r(v.init);
+    }
+    case "bin": return r(e.l) || r(e.r);
+    case "un": return r(e.e);
+    case "cast": return r(e.e);
+    case "call": return e.args.some(r);
     case "field": return e.name === name || e.name.replace(/_$/, "") === name;
   }
   return false;

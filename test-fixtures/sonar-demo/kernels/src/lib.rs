@@ -5,6 +5,7 @@ use core::ffi::{c_int, c_void};
 use core::slice;
 
 mod detector;
+mod spectrum;
 
 /// Filter state kept on the Rust side behind an opaque handle.
 pub struct SonarFir {
@@ -88,5 +89,24 @@ pub type DetectCb = unsafe extern "C" fn(ctx: *mut c_void, bearing_deg: f32);
 #[unsafe(no_mangle)]
 pub unsafe extern "C" fn sonar_on_detect(cb: DetectCb, ctx: *mut c_void) -> c_int {
     unsafe { cb(ctx, 0.0) };
+    0
+}
+
+/// Last detection of the receiver; the C header declares the same layout as `sonar_detection`.
+#[repr(C)]
+pub struct SonarDetection {
+    pub bearing_deg: f32,
+    pub stave: u32,
+    pub snr_db: f64,
+    pub flags: u8,
+}
+
+/// Copies the last detection into `out`; returns -1 when either pointer is null.
+#[unsafe(no_mangle)]
+pub unsafe extern "C" fn sonar_fir_last_detection(h: *const SonarFir, out: *mut SonarDetection) -> c_int {
+    if h.is_null() || out.is_null() {
+        return -1;
+    }
+    unsafe { out.write(SonarDetection { bearing_deg: 0.0, stave: 0, snr_db: 0.0, flags: 0 }) };
     0
 }
