@@ -27,6 +27,16 @@ float sonar_beam_power(const float *beam, long n_samples);
 int sonar_set_gain(float db);
 int sonar_on_detect(sonar_detect_cb cb, void *ctx);
 
+/* Last detection of the receiver, filled in by Rust (same layout on both sides). */
+typedef struct sonar_detection {
+    float bearing_deg;
+    uint32_t stave;
+    double snr_db;
+    uint8_t flags;
+} sonar_detection;
+
+int sonar_fir_last_detection(const sonar_fir *h, sonar_detection *out);
+
 #ifdef __cplusplus
 }
 #endif
