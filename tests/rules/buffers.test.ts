@@ -10,6 +10,7 @@ import { analyze } from "../helpers/analyze";
 import { buffersFamily } from "../../server/src/rules/buffers";
 import { contractOf } from "../../server/src/model/pairing";
 import type { Finding } from "../../server/src/rules/api";
+import { parseConfigText } from "../../server/src/analysis/config";
 
 const ROOT = path.join(__dirname, "..", "..", "test-fixtures", "buffers");
 const BUFFER_RULES = new Set(buffersFamily.rules.map((r) => r.id));
@@ -143,5 +144,41 @@ describe("the demo workspace", () => {
     expect(mine).toEqual(["length-unit-mismatch blocks/spectrum_block.cc:24", "port-item-size-mismatch blocks/spectrum_block.cc:18"]);
     const unit = findings.find((f) => f.rule === "length-unit-mismatch")!;
     expect(unit.message).toContain("from `from_raw_parts(power, n)` at spectrum.rs:21");
+  });
+});
+
+describe("documentation", () => {
+  it("the documented [ports] example (docs/sections/buffers.md) reports what the docs say", async () => {
+    const cfg = parseConfigText(`[ports]
+  decl = [
+    { call = "add_channel", item_size_args = [1], direction = "in" },
+    { call = "add_result",  item_size_args = [1], direction = "out" },
+    { call = "ports::declare", item_size_args = [2], direction = "seq" },
+  ]
+  work_methods = ["work", "process_block"]
+  `, ".ferrule.toml");
+    const { findings } = await analyze({
+      "seis.h": "#include <stddef.h>\nvoid seis_envelope(const float *in, float *out, size_t n);\n",
+      "lib.rs": "#[no_mangle] pub unsafe extern \"C\" fn seis_envelope(input: *const f32, out: *mut f32, n: usize) { let x = core::slice::from_raw_parts(input, n); let y = core::slice::from_raw_parts_mut(out, n); y.copy_from_slice(x); }\n",
+      "g.cc": `#include <complex>
+  #include <cstdint>
+  #include "seis.h"
+  class geophone_block : public block {
+  public:
+      geophone_block(size_t vlen) : vlen_(vlen) {
+          add_channel("raw", sizeof(int16_t) * 2);      // input port 0: int16 I/Q pairs
+          add_result("envelope", sizeof(float) * vlen); // output port 0: vlen floats per item
+      }
+      int process_block(int n, const void *in_buf, void *out_buf) {
+          auto *iq = static_cast<const std::complex<float> *>(in_buf); // port-item-size-mismatch: 8 vs 4 bytes
+          auto *env = static_cast<float *>(out_buf);
+          seis_envelope(reinterpret_cast<const float *>(iq), env, n);  // vector-port-count: n, not n * vlen
+          return n;
+      }
+  private:
+      size_t vlen_;
+  };
+  ` }, { families: cfg.families });
+    expect(got(findings)).toEqual(["item-size-mismatch g.cc:13", "port-item-size-mismatch g.cc:11", "vector-port-count g.cc:13"]);
   });
 });
