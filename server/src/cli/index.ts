@@ -6,4 +6,6 @@ import * as v8 from "node:v8";
 v8.setFlagsFromString("--liftoff-only");
 // eslint-disable-next-line import/first
 // A worker thread started by analysis/parallel.ts runs this same bundle and serves extraction.
-import("../analysis/parallel.js").then((p) => p.runWorkerIfAsked() || import("./main.js").then((m) => m.main()));
+void import("../analysis/parallel.js").then(async (p) => {
+  if (!p.runWorkerIfAsked()) await (await import("./main.js")).main();
+});

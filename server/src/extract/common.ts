@@ -134,8 +134,24 @@ export function evalConst(n: Node | null, names: Map<string, number> = new Map()
   return null;
 }
 
-/** Depth-first walk that never recurses deeper than `maxDepth` (10,000-deep input must not overflow). */
+/** Thrown by `walk` when the file's time budget (ExtractOptions.timeBudgetMs) is spent. */
+export class ExtractTimeout extends Error {}
+
+let deadline = Infinity;
+let budgetMs = 0;
+/** Sets (or, with Infinity, clears) the time by which the current file's extraction must end. */
+export function setExtractDeadline(at: number, budget = 0): void {
+  deadline = at;
+  budgetMs = budget;
+}
+export function extractDeadlinePassed(): boolean {
+  return performance.now() > deadline;
+}
+
+/** Depth-first walk that never recurses deeper than `maxDepth` (10,000-deep input must not overflow).
+ * Throws ExtractTimeout once the file's time budget is spent (checked every 512 nodes). */
 export function walk(root: Node, visit: (n: Node) => boolean | void, maxDepth = 400): void {
+  let count = 0;
   // Two parallel stacks (no tuple per node), and one wasm call for all children of a node
   // (n.child(i) is one call each, and O(i) inside tree-sitter).
   const nodes: Node[] = [root];
@@ -143,6 +159,7 @@ export function walk(root: Node, visit: (n: Node) => boolean | void, maxDepth = 
   while (nodes.length) {
     const n = nodes.pop()!;
     const d = depths.pop()!;
+    if ((++count & 511) === 0 && performance.now() > deadline) throw new ExtractTimeout(`extraction stopped after ${budgetMs} ms`);
     if (visit(n) === false) continue;
     if (d >= maxDepth) continue;
     const cs = n.children;

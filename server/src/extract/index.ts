@@ -1,9 +1,9 @@
 // Extract layer entry: (path, text) → FileFacts. A pure function of its inputs, so callers may
 // cache the result by content hash. Never throws: trouble becomes a notice on the file.
 
-import { getLanguage, initParsers, isHeader, langOf, parseText, type Tree } from "../parse/parser.js";
+import { getLanguage, initParsers, isHeader, langOf, parseText, ParseTimeout, type Tree } from "../parse/parser.js";
 import type { FileFacts, Lang } from "../model/types.js";
-import { emptyFacts } from "./common.js";
+import { emptyFacts, ExtractTimeout, extractDeadlinePassed, setExtractDeadline } from "./common.js";
 import { extractC } from "./c.js";
 import { extractRust } from "./rust.js";
 import { blankAttributeMacros } from "./macros.js";
@@ -63,6 +63,9 @@ function countErrors(t: Tree): number {
 
 export interface ExtractOptions {
   maxFileBytes?: number;
+  /** Time budget for extracting one file (default 1500 ms); past it the file's facts are partial
+   * and it carries a file-skipped notice saying so. Bounds editor latency on pathological files. */
+  timeBudgetMs?: number;
   /** Attribute/export macro names to blank before reading C/C++ (setting `strip_macros`). */
   stripMacros?: readonly string[];
   /** A previous tree of this file, already adjusted with tree.edit(...), for incremental re-parsing
@@ -80,6 +83,17 @@ function reusable(old: Tree | undefined, lang: Lang): Tree | undefined {
   }
 }
 
+export const DEFAULT_TIME_BUDGET_MS = 1500;
+
+function partlyRead(file: string, budget: number): FileFacts["notices"][number] {
+  return {
+    rule: "file-skipped",
+    severity: "info",
+    message: `skipped: ${file}: reading it took longer than ${budget} ms, so its facts are incomplete (findings that involve it may be missing)`,
+    range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
+  };
+}
+
 export function extractFile(file: string, text: string, opts: ExtractOptions = {}): FileFacts {
   const lang = langOf(file) ?? "c";
   const max = opts.maxFileBytes ?? DEFAULT_MAX_FILE_BYTES;
@@ -95,15 +109,21 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
   }
   if (text.charCodeAt(0) === 0xfeff) text = " " + text.slice(1); // BOM: keep columns stable
   let tree: Tree | undefined;
+  const budget = opts.timeBudgetMs ?? DEFAULT_TIME_BUDGET_MS;
+  setExtractDeadline(performance.now() + budget, budget);
+  const timed = (f: FileFacts): FileFacts => {
+    if (extractDeadlinePassed()) f.notices.push(partlyRead(file, budget));
+    return f;
+  };
   try {
     if (lang === "rust") {
-      tree = parseText("rust", text, reusable(opts.oldTree, "rust"));
+      tree = parseText("rust", text, reusable(opts.oldTree, "rust"), budget);
       const rf = extractRust(file, tree);
       if (text.includes("ferrule-allow")) collectSuppressions(tree, rf);
-      return rf;
+      return timed(rf);
     }
     let useLang: Lang = lang;
-    tree = parseText(lang, text, reusable(opts.oldTree, lang));
+    tree = parseText(lang, text, reusable(opts.oldTree, lang), budget);
     if (lang === "c" && tree.rootNode.hasError) {
       // A .h file may hold C++; keep whichever grammar reads it with fewer errors. A .c file stays
       // C, but the bundled C grammar misreads some C11/GCC spellings the C++ grammar reads
@@ -125,9 +145,13 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     const facts = extractC(file, tree, useLang);
     facts.lang = lang === "c" && useLang === "cpp" ? "cpp" : lang;
     if (text.includes("ferrule-allow")) collectSuppressions(tree, facts);
-    return facts;
+    return timed(facts);
   } catch (e) {
     const f = emptyFacts(file, lang);
+    if (e instanceof ExtractTimeout || e instanceof ParseTimeout) {
+      f.notices.push(partlyRead(file, budget));
+      return f;
+    }
     f.notices.push({
       rule: "internal-error",
       severity: "warning",
@@ -136,6 +160,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     });
     return f;
   } finally {
+    setExtractDeadline(Infinity);
     if (tree && opts.keepTree) opts.keepTree(tree);
     else tree?.delete();
   }

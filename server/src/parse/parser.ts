@@ -71,11 +71,23 @@ export function isReady(): boolean {
 
 /** Grammar used for a source language. C headers are parsed with the C++ grammar when they
  * contain C++ constructs; callers decide by file extension and content (see langOf). */
-export function parseText(lang: Lang, text: string, old?: Tree): Tree {
+export function parseText(lang: Lang, text: string, old?: Tree, timeoutMs = 0): Tree {
   const p = parsers.get(lang);
   if (!p) throw new Error("parsers not initialised: await initParsers() first");
-  return p.parse(text, old);
+  // tree-sitter gives up after the timeout (web-tree-sitter then throws "Parsing failed").
+  p.setTimeoutMicros(Math.max(0, Math.round(timeoutMs * 1000)));
+  try {
+    return p.parse(text, old);
+  } catch (e) {
+    if (timeoutMs > 0) throw new ParseTimeout(`parsing took longer than ${timeoutMs} ms`);
+    throw e;
+  } finally {
+    if (timeoutMs > 0) p.setTimeoutMicros(0);
+  }
 }
+
+/** Thrown by parseText when its timeout passed. */
+export class ParseTimeout extends Error {}
 
 export function getLanguage(lang: Lang): Parser.Language {
   const p = parsers.get(lang);
