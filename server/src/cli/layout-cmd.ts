@@ -2,7 +2,7 @@
 
 import type { Model } from "../model/boundary.js";
 import type { TypeDecl } from "../model/types.js";
-import { declLayout, type Layout } from "../model/layout.js";
+import { declLayout, spellType, type Layout } from "../model/layout.js";
 import { shortTriple, type Triple } from "../model/targets.js";
 import { rel } from "./format.js";
 
@@ -38,24 +38,43 @@ export function layoutTypes(model: Model, cwd: string): LayoutJsonType[] {
   return out;
 }
 
-/** A per-target table of one type: used by the text format and the editor hover. */
+/**
+ * A per-target table of one type: used by the text format and the editor hover. One row per field
+ * (its type as the source spells it, then `@offset (size)` per target), a `(padding)` row after
+ * any field that is followed by padding on some target, and size / alignment at the bottom.
+ */
 export function layoutTable(d: TypeDecl, model: Model, targets: Triple[] = model.targets): string {
   const side = d.lang === "rust" ? "rust" : "c";
   const ls: [Triple, Layout][] = targets.map((t) => [t, declLayout(d, { model, side, triple: t })]);
-  const head = ["field", ...targets.map(shortTriple)];
+  const head = ["field", "type", ...targets.map(shortTriple)];
   const rows: string[][] = [];
-  const first = ls.find(([, l]) => l.fields)?.[1];
+  const first = ls.find(([, l]) => l.fields?.length)?.[1];
   const names = first?.fields?.map((f) => f.name) ?? [];
+  const holeAt = (l: Layout, at: number): number | undefined => l.holes?.find(([o]) => o === at)?.[1];
+  if (d.kind === "enum") {
+    for (const e of d.enumerators) rows.push([e.name, "= " + (e.value ?? e.text), ...ls.map(() => "")]);
+  }
   names.forEach((n, i) => {
-    rows.push([n || "(anon)", ...ls.map(([, l]) => {
+    const decl = d.fields.find((f) => f.name === n) ?? d.fields[i];
+    rows.push([n || "(anonymous)", decl ? spellType(decl.type, side) + (decl.bits !== undefined ? ` : ${decl.bits}` : "") : "", ...ls.map(([, l]) => {
       const f = l.fields?.[i];
       if (!f) return "—";
       return f.bits !== undefined ? `@${f.offset} bits ${f.bitOffset! % 8}+${f.bits}` : `@${f.offset} (${f.size})`;
     })]);
+    if (d.kind === "union") return;
+    const pads = ls.map(([, l]) => {
+      const f = l.fields?.[i];
+      if (!f || f.bits !== undefined) return undefined;
+      return holeAt(l, f.offset + f.size);
+    });
+    if (pads.some((x) => x !== undefined)) rows.push(["  (padding)", "", ...pads.map((x) => (x === undefined ? "" : `${x} byte${x === 1 ? "" : "s"}`))]);
   });
-  rows.push(["size / align", ...ls.map(([, l]) => (l.unknown ? "?" : `${l.size} / ${l.align}`))]);
-  rows.push(["padding", ...ls.map(([, l]) => (l.holes?.length ? l.holes.map(([o, n]) => `${n}@${o}`).join(" ") : l.unknown || l.notPortable ? "?" : "none"))]);
-  const notes = ls.filter(([, l]) => l.unknown || l.notPortable).map(([t, l]) => `${shortTriple(t)}: ${l.unknown ?? l.notPortable}`);
+  if (d.kind === "union") {
+    const pads = ls.map(([, l]) => l.holes?.[0]?.[1]);
+    if (pads.some((x) => x !== undefined)) rows.push(["  (padding)", "", ...pads.map((x) => (x === undefined ? "" : `${x} byte${x === 1 ? "" : "s"}`))]);
+  }
+  rows.push(["size / align", "", ...ls.map(([, l]) => (l.unknown || l.notPortable ? "?" : `${l.size} / ${l.align}`))]);
+  const notes = ls.filter(([, l]) => l.unknown || l.notPortable).map(([t, l]) => `${shortTriple(t)}: ${l.unknown ?? `layout not portable: ${l.notPortable}`}`);
   const w = head.map((_, i) => Math.max(head[i]!.length, ...rows.map((r) => r[i]!.length)));
   const line = (r: string[]) => "| " + r.map((c, i) => c.padEnd(w[i]!)).join(" | ") + " |";
   return [line(head), "|" + w.map((x) => "-".repeat(x + 2)).join("|") + "|", ...rows.map(line), ...notes.map((n) => `note: ${n}`)].join("\n");

@@ -201,10 +201,14 @@ function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple)
     }
     return null;
   }
-  if (lr.size !== lc.size) {
+  // A Rust #[repr(C)]/transparent/#[repr(int)] aggregate against a C aggregate with a body is a
+  // mirror pair: the layout family (rules/layout.ts, mirror-layout-mismatch / mirror-enum-mismatch)
+  // reports its first differing field with both offsets, so a size difference is not repeated here.
+  const mirrored = !!rd && !!cd && r.k === "named" && c.k === "named" && ((rd.kind === "enum") === (cd.kind === "enum")) && !!(rd.repr.c || rd.repr.transparent || rd.repr.int);
+  if (!mirrored && lr.size !== lc.size) {
     return { kind: "width", detail: `\`${describeRust(r)}\` is ${lr.size} bytes but \`${describeC(c)}\` is ${lc.size} bytes` };
   }
-  if (lr.align !== lc.align) {
+  if (!mirrored && lr.align !== lc.align) {
     return { kind: "width", detail: `\`${describeRust(r)}\` is aligned to ${lr.align} but \`${describeC(c)}\` to ${lc.align}` };
   }
   if ((r.k === "named") !== (c.k === "named") && !(rd?.kind === "enum" || cd?.kind === "enum")) {

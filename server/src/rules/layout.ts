@@ -1,4 +1,510 @@
-// Rule family "layout" (placeholder: filled in by its issue).
-import type { RuleFamily } from "./api.js";
+// Rule family "layout": a Rust mirror of a C aggregate must have the same layout on every target,
+// and layout assertions written in the source must hold on every target.
+//
+// Pairing a Rust type with a C type (all three routes; a pair's aggregate fields pair up too):
+//  1. an explicit mapping: a `ferrule-mirror: c_name` comment above the Rust item, or
+//     `[layout.mirrors] RustName = "c_name"` in .ferrule.toml;
+//  2. a function signature: parameter i (or the return) of a Rust extern fn and of the C
+//     declaration of the same symbol name aggregates, by value or through the same number of
+//     pointer levels;
+//  3. the same name after normalisation (`SonarFrameHdr` ~ `sonar_frame_hdr_t`).
+// Layout facts come from model/layout.ts (checked against clang/gcc/rustc by
+// tests/layout.oracle.test.ts); the Rust Reference ("Type layout") says a repr(C) type is laid out
+// like the C type, and ("Behavior considered undefined") that an invalid enum discriminant is
+// undefined behaviour.
 
-export const layoutFamily: RuleFamily = { name: "layout", rules: [], check: () => [] };
+import type { Model } from "../model/boundary.js";
+import { normName } from "../model/boundary.js";
+import type { AbiType, FnDecl, Range, SourceAssert, TypeDecl } from "../model/types.js";
+import { declLayout, layoutOf, spellType, type Layout } from "../model/layout.js";
+import { compareOn } from "../model/compare.js";
+import { C_SPELLING, RUST_SPELLING, shortTriple, type ScalarKind, type Triple } from "../model/targets.js";
+import { finding, targetPhrase, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
+
+export const MIRROR_MISMATCH: RuleMeta = {
+  id: "mirror-layout-mismatch",
+  severity: "error",
+  summary: "A Rust #[repr(C)] type and the C type it mirrors differ in field count, order, a field's type, offset or size, or total size/alignment, on some target.",
+  why: "Every field after the first difference is read from the wrong bytes: a header shared with C++ or an FPGA descriptor ring is silently corrupted, often only on the 32-bit targets.",
+};
+export const MIRROR_NOT_REPR_C: RuleMeta = {
+  id: "mirror-not-repr-c",
+  severity: "error",
+  summary: "A Rust struct/union/enum that crosses the boundary (through a pointer, or as the mirror of a C type) has no #[repr(C)], #[repr(transparent)] or #[repr(int)].",
+  why: "Without repr(C) Rust may reorder and pad fields as it likes (Rust Reference, \"The Rust representation\"), so C reads different bytes than Rust wrote.",
+};
+export const ENUM_MISMATCH: RuleMeta = {
+  id: "mirror-enum-mismatch",
+  severity: "error",
+  summary: "A Rust enum and the C enum it mirrors have different discriminant values, a different number of values, or a different size on some target.",
+  why: "A value written by one side means a different variant (or is out of range) on the other; a size difference shifts every later field or argument.",
+};
+export const ENUM_FROM_C_INT: RuleMeta = {
+  id: "enum-from-c-int",
+  severity: "warning",
+  summary: "A Rust field-less enum receives a value from C (parameter, return or mirrored field) where C can hold any integer.",
+  why: "C enums and ints may hold values no variant declares; such a value in a Rust enum is undefined behaviour (Rust Reference, \"Behavior considered undefined\"). Receive the integer and convert with a match or TryFrom.",
+};
+export const ASSERT_FAILS: RuleMeta = {
+  id: "layout-assert-fails",
+  severity: "error",
+  summary: "A _Static_assert/static_assert/const assert! about sizeof/alignof/offsetof fails on some target.",
+  why: "The assertion documents a layout the code relies on; the build for that target either fails or (if the assertion is not compiled there) runs with a different layout.",
+};
+export const NOT_PORTABLE: RuleMeta = {
+  id: "layout-not-portable",
+  severity: "warning",
+  summary: "A type that crosses the boundary has a layout ferrule does not compute on some target (bit-fields under Microsoft rules, flexible array members inside aggregates, …).",
+  why: "The layout depends on compiler rules no ABI document fixes; check it with the compiler for that target or avoid the construct at the boundary.",
+};
+
+interface Pair {
+  rust: TypeDecl;
+  c: TypeDecl;
+  /** How they were matched, for messages. */
+  via: string;
+  /** Only ever passed by value (the ffi-safety family reports a missing repr then). */
+  byValueOnly: boolean;
+}
+
+const MIRROR_RE = /ferrule-mirror:\s*(?:struct\s+|union\s+|enum\s+)?([A-Za-z_]\w*)/;
+
+function isAggregate(d: TypeDecl | undefined): d is TypeDecl {
+  return !!d && (d.kind === "struct" || d.kind === "union" || d.kind === "enum") && !d.opaqueMarker && !d.generic;
+}
+
+function cAggregateByName(model: Model, name: string): TypeDecl | undefined {
+  const d = model.aggregate({ k: "named", name }, "c");
+  return d && d.kind !== "opaque" ? d : undefined;
+}
+
+/** Peels the same number of pointer/array levels off both sides; returns the inner named types. */
+function innerPair(model: Model, r: AbiType, c: AbiType): { r: TypeDecl; c: TypeDecl; byValue: boolean } | undefined {
+  let a = model.resolve(r, "rust");
+  let b = model.resolve(c, "c");
+  let byValue = true;
+  for (let i = 0; i < 8; i++) {
+    if (a.k === "ptr" && b.k === "ptr") {
+      a = model.resolve(a.to, "rust");
+      b = model.resolve(b.to, "c");
+      byValue = false;
+      continue;
+    }
+    if (a.k === "array" && b.k === "array") {
+      a = model.resolve(a.of, "rust");
+      b = model.resolve(b.of, "c");
+      continue;
+    }
+    break;
+  }
+  if (a.k !== "named" || b.k !== "named") return undefined;
+  const rd = model.aggregate(a, "rust");
+  const cd = model.aggregate(b, "c");
+  if (!rd || !cd || cd.kind === "opaque" || rd.opaqueMarker || rd.generic) return undefined;
+  return { r: rd, c: cd, byValue };
+}
+
+export function findPairs(model: Model): Pair[] {
+  const pairs = new Map<string, Pair>();
+  const add = (rust: TypeDecl, c: TypeDecl, via: string, byValue: boolean) => {
+    const key = `${rust.id}|${c.id}`;
+    const old = pairs.get(key);
+    if (old) {
+      old.byValueOnly &&= byValue;
+      return;
+    }
+    pairs.set(key, { rust, c, via, byValueOnly: byValue });
+  };
+  const rustAggs: TypeDecl[] = [];
+  const cByNorm = new Map<string, TypeDecl[]>();
+  for (const f of model.files.values()) {
+    for (const d of f.types) {
+      if (!isAggregate(d)) continue;
+      if (f.lang === "rust") rustAggs.push(d);
+      else {
+        const arr = cByNorm.get(normName(d.name)) ?? [];
+        if (!arr.some((x) => x.name === d.name)) arr.push(d);
+        cByNorm.set(normName(d.name), arr);
+      }
+    }
+  }
+  // 1. explicit mappings
+  const cfg = (model.config.families?.layout ?? {}) as { mirrors?: Record<string, unknown> };
+  const mirrors = cfg.mirrors && typeof cfg.mirrors === "object" ? cfg.mirrors : {};
+  for (const d of rustAggs) {
+    const m = MIRROR_RE.exec(d.doc);
+    const target = m?.[1] ?? (typeof mirrors[d.name] === "string" ? (mirrors[d.name] as string) : undefined);
+    if (!target) continue;
+    const c = cAggregateByName(model, target);
+    if (c) add(d, c, m ? `the ferrule-mirror comment names \`${target}\`` : `the [layout.mirrors] setting names \`${target}\``, false);
+  }
+  // 2. function signatures
+  for (const g of model.symbols.values()) {
+    if (!g.rust.length || !g.c.length) continue;
+    const protos = g.c.filter((f) => f.role === "proto" && f.inHeader);
+    const cands = protos.length ? protos : g.c;
+    for (const r of g.rust) {
+      for (const c of cands) {
+        const n = Math.min(r.params.length, c.params.length);
+        for (let i = 0; i < n; i++) {
+          const p = innerPair(model, r.params[i]!.type, c.params[i]!.type);
+          if (p) add(p.r, p.c, `both are parameter ${i + 1} of \`${g.symbol}\``, p.byValue);
+        }
+        const p = innerPair(model, r.ret, c.ret);
+        if (p) add(p.r, p.c, `both are the return type of \`${g.symbol}\``, p.byValue);
+      }
+    }
+  }
+  // 3. same (normalised) name, when exactly one C aggregate has it
+  for (const d of rustAggs) {
+    const cs = cByNorm.get(normName(d.name)) ?? [];
+    if (cs.length === 1 && (cs[0]!.kind === "enum") === (d.kind === "enum")) add(d, cs[0]!, "they have the same name", false);
+  }
+  // nested aggregates of a pair pair up too (same field index, same pointer depth)
+  const queue = [...pairs.values()];
+  for (let k = 0; k < queue.length && k < 10_000; k++) {
+    const p = queue[k]!;
+    if (p.rust.kind === "enum" || p.c.kind === "enum") continue;
+    const n = Math.min(p.rust.fields.length, p.c.fields.length);
+    for (let i = 0; i < n; i++) {
+      const q = innerPair(model, p.rust.fields[i]!.type, p.c.fields[i]!.type);
+      if (!q) continue;
+      const key = `${q.r.id}|${q.c.id}`;
+      if (pairs.has(key)) continue;
+      add(q.r, q.c, `they are field ${i + 1} of \`${p.rust.name}\` / \`${p.c.name}\``, q.byValue && p.byValueOnly);
+      queue.push(pairs.get(key)!);
+    }
+  }
+  return [...pairs.values()];
+}
+
+function bytes(n: number): string {
+  return n === 1 ? "1 byte" : `${n} bytes`;
+}
+
+function cName(d: TypeDecl): string {
+  return d.tag && d.tag === d.name && d.kind !== "enum" ? `${d.kind} ${d.name}` : d.name;
+}
+
+function group<T>(items: { key: string; triple: Triple; v: T }[]): { key: string; triples: Triple[]; vs: T[] }[] {
+  const out: { key: string; triples: Triple[]; vs: T[] }[] = [];
+  for (const it of items) {
+    const g = out.find((x) => x.key === it.key);
+    if (g) {
+      g.triples.push(it.triple);
+      g.vs.push(it.v);
+    } else out.push({ key: it.key, triples: [it.triple], vs: [it.v] });
+  }
+  return out;
+}
+
+/** "8 (4 bytes)" when all targets agree, else "8 (4 bytes) on armv7, 16 (8 bytes) on x86_64-windows". */
+function perTarget(triples: Triple[], vals: string[]): string {
+  if (vals.every((v) => v === vals[0])) return vals[0]!;
+  const g = group(vals.map((v, i) => ({ key: v, triple: triples[i]!, v })));
+  return g.map((x) => `${x.key} on ${x.triples.map(shortTriple).join(", ")}`).join(", ");
+}
+
+interface FieldDiff {
+  key: string;
+  index: number;
+  severity?: Finding["severity"];
+  rustRange: Range;
+  cRange: Range;
+  /** Message without the per-target numbers. */
+  text: string;
+  numbers: string;
+}
+
+function fieldLabel(i: number, name: string): string {
+  return `field ${i + 1}${name ? ` \`${name}\`` : ""}`;
+}
+
+function diffOn(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): FieldDiff | undefined {
+  const rf = p.rust.fields;
+  const cf = p.c.fields;
+  const bits = cf.some((f) => f.bits !== undefined);
+  const n = Math.min(rf.length, cf.length);
+  if (!bits) {
+    for (let i = 0; i < n; i++) {
+      const a = lr.fields?.[i];
+      const b = lc.fields?.[i];
+      if (!a || !b) break;
+      const td = compareOn(model, rf[i]!.type, cf[i]!.type, t);
+      const typeBad = td && td.kind !== "const" && td.kind !== "name" && td.kind !== "nullable";
+      if (a.offset === b.offset && a.size === b.size && !typeBad) continue;
+      const rt = spellType(rf[i]!.type, "rust");
+      const ct = spellType(cf[i]!.type, "c");
+      const moved = cf.findIndex((x) => x.name && rf[i]!.name && normName(x.name) === normName(rf[i]!.name));
+      const hint = moved >= 0 && moved !== i ? ` (C declares \`${cf[moved]!.name}\` as field ${moved + 1}: fields in a different order?)` : "";
+      const why = typeBad ? ` — ${td!.detail}` : a.offset !== b.offset ? " — an earlier difference in alignment or packing moves it" : "";
+      return {
+        key: `f${i}|${rt}|${ct}|${why}`,
+        index: i,
+        severity: td && td.kind === "sign" && a.offset === b.offset && a.size === b.size ? "warning" : undefined,
+        rustRange: rf[i]!.range,
+        cRange: cf[i]!.range,
+        text: `first differ at ${fieldLabel(i, rf[i]!.name)}: \`${rt}\` in Rust, \`${ct}\`${cf[i]!.name && cf[i]!.name !== rf[i]!.name ? ` \`${cf[i]!.name}\`` : ""} in C${why}${hint}`,
+        numbers: `Rust offset ${a.offset} (${bytes(a.size)}), C offset ${b.offset} (${bytes(b.size)})`,
+      };
+    }
+    if (rf.length !== cf.length) {
+      const extraR = rf.length > cf.length;
+      const f = extraR ? rf[n]! : cf[n]!;
+      return {
+        key: `count`,
+        index: n,
+        rustRange: extraR ? f.range : p.rust.nameRange,
+        cRange: extraR ? p.c.nameRange : f.range,
+        text: `have ${rf.length} field(s) in Rust but ${cf.length} in C; ${fieldLabel(n, f.name)} exists only in ${extraR ? "Rust" : "C"}`,
+        numbers: `sizes ${lr.size} / ${lc.size} bytes`,
+      };
+    }
+  }
+  if (lr.size !== lc.size || lr.align !== lc.align) {
+    return {
+      key: "total",
+      index: -1,
+      rustRange: p.rust.nameRange,
+      cRange: p.c.nameRange,
+      text: bits
+        ? "differ in size or alignment (the C type has bit-fields, so fields are compared by total size only)"
+        : `differ in total size or alignment with the same fields — a missing or extra packed/align attribute?`,
+      numbers: `Rust ${lr.size} bytes aligned to ${lr.align}, C ${lc.size} bytes aligned to ${lc.align}`,
+    };
+  }
+  return undefined;
+}
+
+function checkPair(model: Model, p: Pair, out: Finding[], reprReported: Set<string>): void {
+  const rd = p.rust;
+  const cd = p.c;
+  const related = [{ range: cd.nameRange, message: `C declaration of \`${cd.name}\`` }];
+  const hasRepr = rd.kind === "enum" ? !!(rd.repr.c || rd.repr.int) : !!(rd.repr.c || rd.repr.transparent);
+  if (!hasRepr) {
+    if (!p.byValueOnly && !reprReported.has(rd.id)) {
+      reprReported.add(rd.id);
+      out.push(finding(MIRROR_NOT_REPR_C, rd.nameRange, `\`${rd.name}\` crosses the boundary as the Rust side of C \`${cName(cd)}\` (${p.via}) but has no ${rd.kind === "enum" ? "#[repr(C)] or #[repr(<int>)]" : "#[repr(C)]"}, so Rust may lay it out differently`, related, { data: { rust: rd.id, c: cd.id } }));
+    }
+    return;
+  }
+  const targets = model.targets;
+  if (rd.kind === "enum" || cd.kind === "enum") {
+    checkEnumPair(model, p, out);
+    return;
+  }
+  if (rd.kind !== cd.kind) {
+    out.push(finding(MIRROR_MISMATCH, rd.nameRange, `\`${rd.name}\` is a Rust ${rd.kind} but C \`${cName(cd)}\` is a ${cd.kind} (${p.via})`, related, { data: { rust: rd.id, c: cd.id } }));
+    return;
+  }
+  const items: { key: string; triple: Triple; v: FieldDiff }[] = [];
+  const notPortable: { key: string; triple: Triple; v: string }[] = [];
+  for (const t of targets) {
+    const lr = declLayout(rd, { model, side: "rust", triple: t });
+    const lc = declLayout(cd, { model, side: "c", triple: t });
+    if (lr.unknown || lc.unknown) return; // an unresolved field type: nothing certain to say
+    if (lc.notPortable || lr.notPortable) {
+      const why = lc.notPortable ?? lr.notPortable!;
+      notPortable.push({ key: why, triple: t, v: why });
+      continue;
+    }
+    const d = diffOn(model, p, t, lr, lc);
+    if (d) items.push({ key: d.key, triple: t, v: d });
+  }
+  for (const g of group(notPortable)) {
+    out.push(finding(NOT_PORTABLE, cd.nameRange, `layout not portable: C \`${cName(cd)}\`, mirrored by Rust \`${rd.name}\`: ${g.key}; ferrule cannot compare them there${targetPhrase(g.triples, targets)}`, [{ range: rd.nameRange, message: `Rust mirror \`${rd.name}\`` }], {
+      targets: g.triples.length === targets.length ? undefined : g.triples,
+      data: { rust: rd.id, c: cd.id },
+    }));
+  }
+  for (const g of group(items)) {
+    const d = g.vs[0]!;
+    const nums = perTarget(g.triples, g.vs.map((x) => x.numbers));
+    const f = finding(MIRROR_MISMATCH, d.rustRange, `\`${rd.name}\` (Rust) and \`${cName(cd)}\` (C) ${d.text}: ${nums}${targetPhrase(g.triples, targets)}`, [{ range: d.cRange, message: `C side: \`${cName(cd)}\` (matched because ${p.via})` }], {
+      targets: g.triples.length === targets.length ? undefined : g.triples,
+      data: { rust: rd.id, c: cd.id, field: d.index },
+    });
+    if (d.severity) f.severity = d.severity;
+    out.push(f);
+  }
+}
+
+function checkEnumPair(model: Model, p: Pair, out: Finding[]): void {
+  const rd = p.rust;
+  const cd = p.c;
+  const related = [{ range: cd.nameRange, message: `C declaration of \`${cd.name}\`` }];
+  if (rd.kind !== "enum" || cd.kind !== "enum") {
+    out.push(finding(ENUM_MISMATCH, rd.nameRange, `\`${rd.name}\` is a Rust ${rd.kind} but C \`${cd.name}\` is a ${cd.kind} (${p.via})`, related));
+    return;
+  }
+  const re = rd.enumerators;
+  const ce = cd.enumerators;
+  const n = Math.min(re.length, ce.length);
+  let reported = false;
+  for (let i = 0; i < n; i++) {
+    if (re[i]!.value === null || ce[i]!.value === null) break;
+    if (re[i]!.value !== ce[i]!.value) {
+      out.push(finding(ENUM_MISMATCH, re[i]!.range, `\`${rd.name}::${re[i]!.name}\` = ${re[i]!.value} in Rust but the C value at the same position, \`${ce[i]!.name}\`, is ${ce[i]!.value}`, [{ range: ce[i]!.range, message: `C enumerator \`${ce[i]!.name}\` (matched because ${p.via})` }], { data: { rust: rd.id, c: cd.id, index: i } }));
+      reported = true;
+      break;
+    }
+  }
+  if (!reported && re.length !== ce.length) {
+    const rv = new Set(re.map((e) => e.value));
+    const missing = ce.filter((e) => !rv.has(e.value));
+    const extra = re.filter((e) => !new Set(ce.map((x) => x.value)).has(e.value));
+    const parts: string[] = [];
+    if (missing.length) parts.push(`C declares ${missing.map((e) => `\`${e.name}\` = ${e.value}`).join(", ")} that Rust lacks${missing.length ? " — C sending it is undefined behaviour in Rust" : ""}`);
+    if (extra.length) parts.push(`Rust declares ${extra.map((e) => `\`${e.name}\` = ${e.value}`).join(", ")} that C lacks`);
+    out.push(finding(ENUM_MISMATCH, rd.nameRange, `\`${rd.name}\` has ${re.length} variant(s) but C \`${cd.name}\` has ${ce.length}: ${parts.join("; ")}`, related, { data: { rust: rd.id, c: cd.id } }));
+  }
+  const sizes: { key: string; triple: Triple; v: string }[] = [];
+  for (const t of model.targets) {
+    const a = declLayout(rd, { model, side: "rust", triple: t });
+    const b = declLayout(cd, { model, side: "c", triple: t });
+    if (a.unknown || b.unknown) return;
+    if (a.size !== b.size || a.align !== b.align) sizes.push({ key: `${a.size}/${b.size}`, triple: t, v: `${bytes(a.size)} in Rust but ${bytes(b.size)} in C` });
+  }
+  for (const g of group(sizes)) {
+    out.push(finding(ENUM_MISMATCH, rd.nameRange, `\`${rd.name}\` is ${g.vs[0]}${rd.repr.int ? ` (#[repr(${RUST_SPELLING[rd.repr.int]})])` : ""}; C \`${cd.name}\` is ${cd.repr.int ? `\`${C_SPELLING[cd.repr.int]}\`-sized` : "int-sized (C enums are int-sized on these ABIs)"}${targetPhrase(g.triples, model.targets)}`, related, {
+      targets: g.triples.length === model.targets.length ? undefined : g.triples,
+      data: { rust: rd.id, c: cd.id },
+    }));
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Rust enums receiving C integers
+
+function rustEnum(model: Model, t: AbiType): TypeDecl | undefined {
+  const r = model.resolve(t, "rust");
+  if (r.k !== "named") return undefined;
+  const d = model.aggregate(r, "rust");
+  if (!d || d.kind !== "enum" || d.opaqueMarker || (d as TypeDecl & { dataCarrying?: boolean }).dataCarrying) return undefined;
+  return d;
+}
+
+function cIntegerish(model: Model, t: AbiType): boolean {
+  const r = model.resolve(t, "c");
+  if (r.k === "scalar") return r.s !== "float" && r.s !== "double" && r.s !== "ldouble" && r.s !== "bool";
+  if (r.k === "named") return model.aggregate(r, "c")?.kind === "enum";
+  return false;
+}
+
+function enumWarning(model: Model, e: TypeDecl, where: string, range: Range, cType: AbiType, cRange: Range, out: Finding[]): void {
+  const vals = e.enumerators.map((x) => x.value).filter((v): v is number => v !== null);
+  const shown = vals.length <= 6 ? vals.join(", ") : `${vals.slice(0, 5).join(", ")}, …`;
+  const ct = spellType(model.resolve(cType, "c"), "c");
+  out.push(finding(ENUM_FROM_C_INT, range, `${where} receives C \`${ct}\` as Rust enum \`${e.name}\`: any value other than ${shown} is undefined behaviour in Rust; receive the integer and convert it with a match or TryFrom`, [{ range: cRange, message: `C side (\`${ct}\`)` }], { data: { enum: e.id } }));
+}
+
+function checkEnumInputs(model: Model, pairs: Pair[], out: Finding[]): void {
+  for (const g of model.symbols.values()) {
+    if (!g.rust.length || !g.c.length) continue;
+    const protos = g.c.filter((f) => f.role === "proto" && f.inHeader);
+    const c: FnDecl | undefined = (protos.length ? protos : g.c)[0];
+    if (!c) continue;
+    for (const r of g.rust) {
+      if (r.role === "export") {
+        r.params.forEach((p, i) => {
+          const e = rustEnum(model, p.type);
+          const cp = c.params[i];
+          if (e && cp && cIntegerish(model, cp.type)) enumWarning(model, e, `parameter ${i + 1} \`${p.name}\` of \`${r.name}\``, p.typeRange, cp.type, cp.range, out);
+        });
+      } else if (r.role === "import") {
+        const e = rustEnum(model, r.ret);
+        if (e && cIntegerish(model, c.ret)) enumWarning(model, e, `the return value of \`${r.name}\``, r.retRange ?? r.nameRange, c.ret, c.retRange ?? c.nameRange, out);
+      }
+    }
+  }
+  for (const p of pairs) {
+    if (p.rust.kind === "enum" || p.c.kind === "enum") continue;
+    const n = Math.min(p.rust.fields.length, p.c.fields.length);
+    for (let i = 0; i < n; i++) {
+      const rf = p.rust.fields[i]!;
+      const cf = p.c.fields[i]!;
+      const e = rustEnum(model, rf.type);
+      if (e && cIntegerish(model, cf.type)) enumWarning(model, e, `field \`${rf.name}\` of \`${p.rust.name}\``, rf.range, cf.type, cf.range, out);
+    }
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Source assertions
+
+const SCALAR_BY_C_NAME = new Map<string, ScalarKind>();
+const SCALAR_BY_RUST_NAME = new Map<string, ScalarKind>();
+for (const [k, v] of Object.entries(C_SPELLING)) if (!SCALAR_BY_C_NAME.has(v)) SCALAR_BY_C_NAME.set(v, k as ScalarKind);
+for (const [k, v] of Object.entries(RUST_SPELLING)) if (!SCALAR_BY_RUST_NAME.has(v)) SCALAR_BY_RUST_NAME.set(v, k as ScalarKind);
+for (const k of ["i8", "u8", "i16", "u16", "i32", "u32", "i64", "u64", "i128", "u128", "isize", "usize", "f32", "f64", "bool"] as ScalarKind[]) SCALAR_BY_RUST_NAME.set(k, k);
+
+function assertSubject(model: Model, a: SourceAssert): { t: AbiType; decl?: TypeDecl } | undefined {
+  const side = a.lang === "rust" ? "rust" : "c";
+  const name = a.typeName.replace(/^(struct|union|enum)\s+/, "");
+  const decls = model.typeDecls(name, side);
+  if (decls.length) {
+    const t: AbiType = { k: "named", name };
+    return { t, decl: model.aggregate(t, side) };
+  }
+  const s = (side === "rust" ? SCALAR_BY_RUST_NAME : SCALAR_BY_C_NAME).get(name.replace(/\s+/g, " "));
+  return s ? { t: { k: "scalar", s } } : undefined;
+}
+
+const OPS: Record<SourceAssert["op"], (a: number, b: number) => boolean> = {
+  "==": (a, b) => a === b, "!=": (a, b) => a !== b, "<=": (a, b) => a <= b,
+  ">=": (a, b) => a >= b, "<": (a, b) => a < b, ">": (a, b) => a > b,
+};
+
+function checkAsserts(model: Model, out: Finding[]): void {
+  for (const f of model.files.values()) {
+    for (const a of f.asserts) {
+      const subj = assertSubject(model, a);
+      if (!subj) continue;
+      const side = a.lang === "rust" ? "rust" : "c";
+      const tn = a.typeName;
+      const what = a.lang === "rust"
+        ? a.kind === "sizeof" ? `size_of::<${tn}>()` : a.kind === "alignof" ? `align_of::<${tn}>()` : `offset_of!(${tn}, ${a.field})`
+        : a.kind === "sizeof" ? `sizeof(${tn})` : a.kind === "alignof" ? `_Alignof(${tn})` : `offsetof(${tn}, ${a.field})`;
+      const fails: { key: string; triple: Triple; v: number }[] = [];
+      const holds: Triple[] = [];
+      for (const t of model.targets) {
+        const l = layoutOf(subj.t, { model, side, triple: t });
+        if (l.unknown || l.notPortable) continue;
+        let actual: number | undefined;
+        if (a.kind === "sizeof") actual = l.size;
+        else if (a.kind === "alignof") actual = l.align;
+        else {
+          const fl = l.fields?.find((x) => x.name === a.field);
+          if (fl && fl.bits === undefined) actual = fl.offset;
+        }
+        if (actual === undefined) continue;
+        if (OPS[a.op](actual, a.value)) holds.push(t);
+        else fails.push({ key: String(actual), triple: t, v: actual });
+      }
+      if (!fails.length) continue;
+      const failing = fails.map((x) => x.triple);
+      const groups = group(fails);
+      const byVal = groups.length === 1 ? String(groups[0]!.vs[0]) : groups.map((g) => `${g.vs[0]} on ${g.triples.map(shortTriple).join(", ")}`).join(", ");
+      const holdText = holds.length ? `; it holds on ${holds.map(shortTriple).join(", ")}` : "";
+      const related = subj.decl ? [{ range: subj.decl.nameRange, message: `declaration of \`${subj.decl.name}\`` }] : [];
+      out.push(finding(ASSERT_FAILS, a.range, `\`${what} ${a.op} ${a.value}\` does not hold: ${what} is ${byVal}${holdText}${targetPhrase(failing, model.targets)}`, related, {
+        targets: failing.length === model.targets.length ? undefined : failing,
+        data: { kind: a.kind, type: a.typeName },
+      }));
+    }
+  }
+}
+
+export const layoutFamily: RuleFamily = {
+  name: "layout",
+  rules: [MIRROR_MISMATCH, MIRROR_NOT_REPR_C, ENUM_MISMATCH, ENUM_FROM_C_INT, ASSERT_FAILS, NOT_PORTABLE],
+  check(model: Model): Finding[] {
+    const out: Finding[] = [];
+    const pairs = findPairs(model);
+    const reprReported = new Set<string>();
+    for (const p of pairs) checkPair(model, p, out, reprReported);
+    checkEnumInputs(model, pairs, out);
+    checkAsserts(model, out);
+    return out;
+  },
+};

@@ -1,0 +1,11 @@
+/* Radio-telescope correlator: status word with bit-fields, mirrored in Rust. */
+#include <stdint.h>
+
+struct corr_status {
+    uint32_t locked : 1;
+    uint32_t overflow : 1;
+    uint32_t channel : 10;
+    uint16_t temp_c;
+};
+
+void corr_status_read(struct corr_status *out);

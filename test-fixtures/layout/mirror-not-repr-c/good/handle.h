@@ -1,0 +1,2 @@
+typedef struct seis_filter seis_filter;
+void seis_filter_reset(seis_filter *h);
