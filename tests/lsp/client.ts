@@ -46,7 +46,7 @@ export async function startClient(rootDir: string, opts: { settings?: Record<str
   conn.onRequest("workspace/configuration", (p: { items: unknown[] }) => p.items.map(() => opts.settings ?? {}));
   conn.onRequest("window/workDoneProgress/create", () => null);
   conn.onRequest("client/registerCapability", () => null);
-  conn.onNotification("window/showMessage", (m: { message: string }) => stderr.push(`showMessage: ${m.message}\n`));
+  conn.onNotification("window/showMessage", (m: unknown) => { stderr.push(`showMessage: ${(m as { message: string }).message}\n`); });
   conn.onNotification("window/logMessage", () => {});
   conn.onNotification("$/progress", () => {});
   conn.listen();
