@@ -18,7 +18,8 @@ const files = corpus();
 /** Extracts and checks the invariants; returns the facts. */
 function extractChecked(name: string, text: string, maxFileBytes?: number) {
   const t0 = performance.now();
-  const facts = extractFile(name, text, maxFileBytes ? { maxFileBytes } : {});
+  // the editor's budget (the issue's bound: nothing may hang past 2 s on one file)
+  const facts = extractFile(name, text, { timeBudgetMs: 1500, ...(maxFileBytes ? { maxFileBytes } : {}) });
   const ms = performance.now() - t0;
   if (ms > PER_FILE_MS) throw new Error(`${name}: extraction took ${ms.toFixed(0)} ms (> ${PER_FILE_MS} ms) on ${text.length} characters`);
   expect(facts.file).toBe(name);

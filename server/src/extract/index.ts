@@ -63,8 +63,9 @@ function countErrors(t: Tree): number {
 
 export interface ExtractOptions {
   maxFileBytes?: number;
-  /** Time budget for extracting one file (default 1500 ms); past it the file's facts are partial
-   * and it carries a file-skipped notice saying so. Bounds editor latency on pathological files. */
+  /** Time budget for parsing + extracting one file (default 10 s, a guard against pathological
+   * input; an editor passes a tighter one, e.g. 1500 ms). Past it the file's facts are partial and
+   * it carries one file-skipped notice saying so. */
   timeBudgetMs?: number;
   /** Attribute/export macro names to blank before reading C/C++ (setting `strip_macros`). */
   stripMacros?: readonly string[];
@@ -83,7 +84,7 @@ function reusable(old: Tree | undefined, lang: Lang): Tree | undefined {
   }
 }
 
-export const DEFAULT_TIME_BUDGET_MS = 1500;
+export const DEFAULT_TIME_BUDGET_MS = 10_000;
 
 function partlyRead(file: string, budget: number): FileFacts["notices"][number] {
   return {

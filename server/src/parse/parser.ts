@@ -22,9 +22,18 @@ export function initParsers(): Promise<void> {
     const probe = parsers.get("c")!.parse("");
     memoiseNodeGetters(Object.getPrototypeOf(probe.rootNode) as object);
     probe.delete();
+    // Warm-up: V8 compiles wasm functions lazily on first call (seconds for the 4.6 MB C++
+    // grammar on a busy machine); pay that here rather than inside the first file's time budget.
+    for (const [g, src] of WARM_UP) parsers.get(g)!.parse(src).delete();
   })();
   return ready;
 }
+
+const WARM_UP: [GrammarName, string][] = [
+  ["rust", `#[repr(C)] pub struct S { a: u32 }\n#[no_mangle] pub unsafe extern "C" fn f(p: *const f32, n: usize) -> i32 { let v = unsafe { *p }; if v > 0.0 { 1 } else { n as i32 } }\n`],
+  ["c", `#include <stddef.h>\ntypedef struct s { int a; float b[4]; } s;\nint f(const float *p, size_t n);\nstatic int g(int x) { return x > 0 ? f(0, 1) : -x; }\n`],
+  ["cpp", `#include <vector>\nextern "C" { int f(const float *p, unsigned long n); }\nnamespace k { class b { public: int w(const void *i) { auto *p = static_cast<const float *>(i); return f(p, 1); } private: std::vector<int> v_; }; }\n`],
+];
 
 /**
  * Memoises the read-only getters of syntax nodes. Each web-tree-sitter getter crosses into wasm
