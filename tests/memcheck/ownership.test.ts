@@ -19,7 +19,7 @@ import * as path from "node:path";
 import { analyze } from "../helpers/analyze.js";
 import { fixesFor } from "../../server/src/fixes/index.js";
 import { ownershipFamily } from "../../server/src/rules/ownership.js";
-import { applyEdits } from "../helpers/edits.js";
+import { applyEditsRel as applyEdits } from "../helpers/edits-rel.js";
 
 const ROOT = path.resolve(__dirname, "../../test-fixtures/ownership");
 const have = (tool: string) => spawnSync(tool, ["--version"], { stdio: "ignore" }).status === 0;

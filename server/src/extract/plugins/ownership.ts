@@ -522,35 +522,31 @@ function functionDeclarator(d: Node | null | undefined): Node | undefined {
 }
 
 const EXIT_STMTS = new Set(["return_statement", "throw_statement", "break_statement", "continue_statement"]);
-/** Per block (by node id): index of its last return/throw/break/continue statement, and each statement's index. */
-let exitCache = new Map<number, { lastExit: number; index: Map<number, number> }>();
 
-function exitsAfter(n: Node): boolean {
-  // Does the statement containing `n` sit in a nested block (an if/else branch, a loop body)
-  // whose later statements return, throw, break or continue? Then the release does not reach
-  // the code after the block.
-  let stmt: Node | null = n;
-  while (stmt && stmt.parent && stmt.parent.type !== "compound_statement") {
-    if (stmt.parent.type === "function_definition") return false;
-    stmt = stmt.parent;
-  }
-  const block = stmt?.parent;
-  if (!stmt || !block) return false;
-  // the function's own block: a final `return` does not make the release conditional
-  if (block.parent?.type === "function_definition") return false;
-  let info = exitCache.get(block.id);
-  if (!info) {
-    info = { lastExit: -1, index: new Map() };
-    const kids = block.namedChildren;
+/**
+ * Whether the statement being walked sits in a nested block (an if/else branch, a loop body)
+ * whose later statements return, throw, break or continue: a release there does not reach the
+ * code after the block. Computed top-down while walking (Node.parent is a search from the root
+ * in tree-sitter, which would make long functions quadratic): when a block is entered, each of
+ * its statements is recorded with its answer; visiting that statement makes it current.
+ */
+let stmtExits = new Map<number, boolean>();
+let curExits = false;
+
+function enterBlock(block: Node, isFunctionBody: boolean): void {
+  const kids = block.namedChildren;
+  let lastExit = -1;
+  if (!isFunctionBody) {
     for (let i = 0; i < kids.length; i++) {
       const k = kids[i]!;
-      info.index.set(k.id, i);
-      if (EXIT_STMTS.has(k.type) || (k.type === "expression_statement" && k.namedChild(0)?.type === "throw_expression")) info.lastExit = i;
+      if (EXIT_STMTS.has(k.type) || (k.type === "expression_statement" && k.namedChild(0)?.type === "throw_expression")) lastExit = i;
     }
-    exitCache.set(block.id, info);
   }
-  const i = info.index.get(stmt.id);
-  return i !== undefined && i < info.lastExit;
+  for (let i = 0; i < kids.length; i++) stmtExits.set(kids[i]!.id, i < lastExit);
+}
+
+function exitsAfter(_n: Node): boolean {
+  return curExits;
 }
 
 function extractFlow(def: Node, file: string, className: string | undefined, out: CFlow[]): CFlow | undefined {
@@ -596,17 +592,27 @@ function extractFlow(def: Node, file: string, className: string | undefined, out
       (ev[ev.length - 1] as { deleterArg?: string }).deleterArg = argOf(a1, file).ref?.name;
     }
   }
-  if (body) visitExpr(body, file, flow);
+  if (body) {
+    (flow as CFlow & { bodyId?: number }).bodyId = body.id;
+    curExits = false;
+    visitExpr(body, file, flow);
+    delete (flow as CFlow & { bodyId?: number }).bodyId;
+  }
   if (cls && mk.param) (flow as CFlow & { param?: string }).param = mk.param;
   out.push(flow);
   return flow;
 }
 
 /** Walks statements/expressions in source order, appending events to the flow. */
-function visitExpr(root: Node, file: string, flow: CFlow): void {
+function visitExpr(root: Node, file: string, flow: CFlow & { bodyId?: number }): void {
   const ev = flow.events;
   walk(root, (n) => {
+    const se = stmtExits.get(n.id);
+    if (se !== undefined) curExits = se;
     switch (n.type) {
+      case "compound_statement":
+        enterBlock(n, n.id === flow.bodyId);
+        return;
       case "lambda_expression":
         return false;
       case "declaration": {
@@ -767,7 +773,8 @@ function extractClass(spec: Node, file: string, flows: CFlow[]): CClass | undefi
 }
 
 function extractCFile(root: Node, facts: FileFacts): void {
-  exitCache = new Map();
+  stmtExits = new Map();
+  curExits = false;
   const file = facts.file;
   const flows: CFlow[] = [];
   const classes: CClass[] = [];
@@ -794,7 +801,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   facts.classes.push(...classes);
   const own: COwnFacts = { flows };
   facts.extra.ownership = own;
-  exitCache = new Map();
+  stmtExits = new Map();
 }
 
 function safely<A extends unknown[]>(f: (...a: A) => void): (...a: A) => void {
