@@ -130,7 +130,7 @@ describe("usage and configuration errors exit 2 with one line", () => {
   test(".ferrule.toml targets and severity overrides apply", () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-cfg-"));
     fs.cpSync(path.join(ROOT, "test-fixtures/sonar-demo"), dir, { recursive: true });
-    fs.writeFileSync(path.join(dir, ".ferrule.toml"), 'targets = ["x86_64"]\n[rules]\nparam-type-mismatch = "off"\npointer-constness = "warning"\nexport-name-mangled = "off"\nport-item-size-mismatch = "off"\nlength-unit-mismatch = "off"\n');
+    fs.writeFileSync(path.join(dir, ".ferrule.toml"), 'targets = ["x86_64"]\n[rules]\nparam-type-mismatch = "off"\npointer-constness = "warning"\nexport-name-mangled = "off"\nport-item-size-mismatch = "off"\nlength-unit-mismatch = "off"\ncopyable-owning-wrapper = "off"\n');
     const r = ferrule(["check", "--format", "json", dir]);
     const j = JSON.parse(r.out);
     expect(j.findings.some((f: { rule: string }) => f.rule === "param-type-mismatch")).toBe(false);

@@ -3,6 +3,8 @@
 
 use core::ffi::{c_int, c_void};
 use core::slice;
+
+mod detector;
 mod spectrum;
 
 /// Filter state kept on the Rust side behind an opaque handle.
@@ -108,5 +110,3 @@ pub unsafe extern "C" fn sonar_fir_last_detection(h: *const SonarFir, out: *mut 
     unsafe { out.write(SonarDetection { bearing_deg: 0.0, stave: 0, snr_db: 0.0, flags: 0 }) };
     0
 }
-
-mod detector;
