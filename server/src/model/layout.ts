@@ -101,7 +101,8 @@ export function enumLayout(d: TypeDecl, triple: Triple): Layout {
   const vals = d.enumerators.map((e) => e.value ?? 0);
   const min = Math.min(0, ...vals);
   const max = Math.max(0, ...vals);
-  if (d.repr.packed && d.lang !== "rust") {
+  // (Microsoft ignores `packed` on enums: clang for x86_64-pc-windows-msvc keeps them int-sized.)
+  if (d.repr.packed && d.lang !== "rust" && !isMs(triple)) {
     for (const size of [1, 2, 4, 8]) {
       const lo = min < 0 ? -(2 ** (size * 8 - 1)) : 0;
       const hi = min < 0 ? 2 ** (size * 8 - 1) - 1 : 2 ** (size * 8) - 1;
@@ -150,6 +151,13 @@ export function layoutOf(t: AbiType, ctx: LayoutCtx): Layout {
       return { size: el.size * t.len, align: el.align, notPortable: el.notPortable, required: el.required, alignAttr: el.alignAttr };
     }
     case "named": {
+      // A C typedef carrying `aligned(N)` changes the alignment: lay it out through its declaration
+      // instead of resolving straight through it.
+      if (ctx.side === "c") {
+        const decls = ctx.model.typeDecls(t.name, "c");
+        const aligned = decls.find((d) => d.kind === "alias" && d.aliasOf && d.repr.align);
+        if (aligned && !decls.some((d) => d.kind !== "alias")) return declLayout(aligned, { ...ctx, depth: depth + 1 });
+      }
       const r = ctx.model.resolve(t, ctx.side);
       if (r.k !== "named") return layoutOf(r, { ...ctx, depth: depth + 1 });
       const d = ctx.model.aggregate(r, ctx.side);
