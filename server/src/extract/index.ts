@@ -153,6 +153,11 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
       f.notices.push(partlyRead(file, budget));
       return f;
     }
+    if (e instanceof RangeError && /call stack/i.test(e.message)) {
+      // pathological nesting (thousands of levels of pointers, generics or brackets)
+      f.notices.push({ rule: "file-skipped", severity: "info", message: `skipped: ${file}: nested too deeply to read`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 } });
+      return f;
+    }
     f.notices.push({
       rule: "internal-error",
       severity: "warning",

@@ -48,7 +48,8 @@ export function runFamily(f: RuleFamily, model: Model): Finding[] {
   try {
     return f.check(model);
   } catch (e) {
-    const err = e as Error;
+    // anything may be thrown (undefined, null, a string): never let the message itself throw
+    const err = { message: e instanceof Error ? e.message : String(e) };
     const anyFile = model.files.keys().next().value ?? "";
     return [{
       rule: INTERNAL.id,
