@@ -54,7 +54,7 @@ describe("ferrule check on the demo", () => {
   test("text format: file:line:col: severity: message [rule] and the related location below", () => {
     const r = ferrule(["check", "test-fixtures/sonar-demo"]);
     expect(r.code).toBe(1);
-    expect(r.out).toMatch(/^test-fixtures\/sonar-demo\/include\/sonar_kernels\.h:19:\d+: error: .* \[param-type-mismatch\]\n {4}test-fixtures\/sonar-demo\/kernels\/src\/lib\.rs:26:\d+: /m);
+    expect(r.out).toMatch(/^test-fixtures\/sonar-demo\/include\/sonar_kernels\.h:19:\d+: error: .* \[param-type-mismatch\]\n {4}test-fixtures\/sonar-demo\/kernels\/src\/lib\.rs:29:\d+: /m);
     expect(r.err).toBe(""); // no progress line on a pipe
   });
 

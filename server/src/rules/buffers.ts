@@ -355,7 +355,10 @@ function checkCalls(model: Model, out: Finding[]): void {
           const from = castFrom ?? v?.castFrom;
           const S = itemSize(model, pointee(model, from, "c"), "c");
           const pair = k.pairs.get(pi);
-          if (P && A && A !== P) {
+          // In C++ a `double *` does not convert to `float *` without a cast (the compiler rejects
+          // the call, C++17 [conv.ptr]); in C it is only a diagnosed constraint violation that
+          // compilers let through with a warning — that is the slip that compiles.
+          if (P && A && A !== P && f.lang !== "cpp") {
             out.push(finding(ITEM_SIZE, a.range, `\`${a.text}\` points to ${typeText(at!)} (${A}-byte items) but parameter \`${p.name}\` of \`${decl.name}\` takes ${typeText(pt)} (${P}-byte items)${pair ? `; ${pairText(pair, decl)}` : ""}`, rel(pair)));
           } else if (P && A && S && S !== A && pair?.lenParam !== undefined && pair.unit === "items") {
             // `(const float *)cbuf` of complex items: the count must be scaled by S / A
