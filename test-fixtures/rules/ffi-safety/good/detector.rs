@@ -28,7 +28,7 @@ pub extern "C" fn ld_state(s: *mut Internal) -> c_int { 0 }
 pub extern "C" fn ld_ref(e: &Event, out: &mut Event, h: Option<NonNull<c_void>>) -> c_int { 0 }
 
 #[no_mangle]
-pub extern "C" fn ld_boxed(b: Option<Box<Event>>) {}
+pub extern "C" fn ld_event_free(b: Option<Box<Event>>) {}
 
 #[no_mangle]
 pub extern "C" fn ld_cb(f: Option<extern "C" fn(i32) -> i32>) -> c_int { 0 }
