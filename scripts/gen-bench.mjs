@@ -170,9 +170,11 @@ function genUnit(r, scen, kind, idx, crate, plant) {
     `/// Retuning request passed by value.`,
   );
   if (plant !== "not-c-representable") rs.add(`#[repr(C)]`);
+  rs.add(`#[derive(Clone, Copy, Debug)]`);
+  const tuningLine = rs.at(`pub struct ${T}Tuning {`);
+  // the layout rules also see the C twin of a Rust struct without #[repr(C)]
+  if (plant === "not-c-representable") exp("mirror-not-repr-c", rs, tuningLine);
   rs.add(
-    `#[derive(Clone, Copy, Debug)]`,
-    `pub struct ${T}Tuning {`,
     `    pub center_hz: f64,`,
     `    pub bandwidth_hz: f64,`,
     `}`,
@@ -215,19 +217,22 @@ function genUnit(r, scen, kind, idx, crate, plant) {
     `    let st = unsafe { &mut *h };`,
     `    let x = unsafe { slice::from_raw_parts(input, n) };`,
     `    let y = unsafe { slice::from_raw_parts_mut(output, n) };`,
-    `    for (i, out) in y.iter_mut().enumerate() {`,
+    `    // No indexing and wrapping counters: a panic must not unwind into the C++ caller.`,
+    `    for (i, (out, v)) in y.iter_mut().zip(x).enumerate() {`,
     `        st.history.rotate_right(1);`,
-    `        st.history[0] = x[i] * st.cfg.gain;`,
+    `        if let Some(first) = st.history.first_mut() {`,
+    `            *first = v * st.cfg.gain;`,
+    `        }`,
     `        *out = ${kid}_term_0(&st.history, i);`,
     `        let level = out.abs();`,
     `        if level > st.stats.peak {`,
     `            st.stats.peak = level;`,
     `            if let Some(cb) = st.cb {`,
-    `                unsafe { cb(st.ctx, st.stats.processed + i as u64, level) };`,
+    `                unsafe { cb(st.ctx, st.stats.processed.wrapping_add(i as u64), level) };`,
     `            }`,
     `        }`,
     `    }`,
-    `    st.stats.processed += n as u64;`,
+    `    st.stats.processed = st.stats.processed.wrapping_add(n as u64);`,
     `    0`,
     `}`,
     ``,
