@@ -141,7 +141,7 @@ describe("Rust constructs vs rustc (host)", () => {
     const model = await modelOf({ "/ws/tlm.rs": RUST_SRC });
     const exprs = RUST_TYPES.flatMap((n) => [`size_of::<${n}>()`, `align_of::<${n}>()`]);
     exprs.push("offset_of!(TlmS, t)", "offset_of!(TlmS, u)", "offset_of!(TlmS, d)", "offset_of!(TlmP, b)");
-    const mine: (number | string)[] = RUST_TYPES.flatMap((n) => {
+    const mine: (number | string)[] = RUST_TYPES.flatMap((n): (number | string)[] => {
       const l = layout(model, n, "rust", HOST_TRIPLE);
       return l.unknown ? [l.unknown] : [l.size, l.align];
     });
