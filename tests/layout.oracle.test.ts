@@ -8,7 +8,9 @@
 //   - clang --target=TRIPLE -ffreestanding -S for all five targets (windows included),
 //   - the Debian gcc cross compilers (i686-linux-gnu-gcc, arm-linux-gnueabihf-gcc,
 //     aarch64-linux-gnu-gcc) and host gcc for the four Linux targets,
-//   - rustc on the host (size_of, align_of, offset_of!) for the Rust-translatable subset,
+//   - rustc on the host (size_of, align_of, offset_of!) for the Rust-translatable subset, and
+//     rustc's own layout of the same items for the other four targets (a no_core probe that reads
+//     the answers from the LLVM IR, tests/helpers/rust-cross.ts),
 // reading sizeof/_Alignof/offsetof/member sizes back from the emitted `const unsigned` array (see
 // tests/oracles/compilers.ts; nothing is run except the host Rust program).
 // Expected values are the compilers'; the documents they implement are the System V AMD64 psABI
@@ -24,6 +26,7 @@ import { declLayout, type Layout } from "../server/src/model/layout.js";
 import type { Model } from "../server/src/model/boundary.js";
 import { TRIPLES, GCC_FOR, HOST_RUST_TOOLS, HOST_TRIPLE, cValuesClang, cValuesGcc, requireTool, rustValuesHost, type Triple } from "./oracles/compilers";
 import { aggArb, render, C_PRELUDE, RUST_PRELUDE, type AggSpec, type Rendered } from "./helpers/layout-gen";
+import { noCoreItems, rustValuesCross } from "./helpers/rust-cross";
 
 const RUNS = 5; // batches
 const BATCH = 220; // structs per batch → 1,100 random aggregates in total, plus the bit-field batches
@@ -126,7 +129,7 @@ function diff(who: string, r: Rendered, q: Question[], got: number[], ours: Layo
 }
 const side = (who: string) => (who.startsWith("rustc") ? "rust" : "c");
 
-async function checkBatch(specs: AggSpec[], tools: { clang: boolean; gcc: Partial<Record<Triple, boolean>>; rust: boolean }, bitfields: boolean): Promise<string> {
+async function checkBatch(specs: AggSpec[], tools: { clang: boolean; gcc: Partial<Record<Triple, boolean>>; rust: boolean; rustCross?: boolean }, bitfields: boolean): Promise<string> {
   const r = render(specs);
   const model = await modelOf({ "/ws/gen.c": C_PRELUDE + r.c, "/ws/gen.rs": RUST_PRELUDE + r.rust });
   const { q, exprs } = questionsC(r);
@@ -154,6 +157,15 @@ async function checkBatch(specs: AggSpec[], tools: { clang: boolean; gcc: Partia
       const ours = layoutsOf(model, r, "rust", HOST_TRIPLE);
       const d = diff(`rustc ${HOST_TRIPLE}`, r, rq.q, rustValuesHost(RUST_PRELUDE + r.rust, rq.exprs), ours);
       if (d) problems.push(d);
+      // rustc's layout on the other four targets, from a no_core probe (tests/helpers/rust-cross.ts)
+      if (tools.rustCross) {
+        const items = noCoreItems(r.rust, r.types.filter((t) => t.rust).map((t) => t.name));
+        for (const t of TRIPLES) {
+          if (t === HOST_TRIPLE) continue;
+          const d2 = diff(`rustc ${t} (no_core probe)`, r, rq.q, rustValuesCross(t, items, rq.exprs), layoutsOf(model, r, "rust", t));
+          if (d2) problems.push(d2);
+        }
+      }
       // The Rust mirror and the C original must also agree with each other on every target.
       for (const t of TRIPLES) {
         const rl = layoutsOf(model, r, "rust", t);
@@ -197,7 +209,7 @@ describe("layout engine vs clang (5 targets), gcc (4 Linux targets) and rustc (h
       fc.asyncProperty(fc.array(aggArb(false), { minLength: BATCH, maxLength: BATCH }), async (specs) => {
         structs += specs.length;
         rustStructs += render(specs).types.filter((t) => t.rust).length;
-        const p = await checkBatch(specs, { clang, gcc, rust }, false);
+        const p = await checkBatch(specs, { clang, gcc, rust, rustCross: rust }, false);
         if (p) throw new Error(p);
       }),
       RUNS,
