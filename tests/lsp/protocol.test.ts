@@ -112,15 +112,17 @@ describe("ferrule lsp --stdio on the demo", () => {
     expect(md).toContain("C struct `sonar_detection`");
     expect(md).toContain("Rust struct `SonarDetection`");
     const table = md.split("```text\n")[1]!.split("```")[0]!;
-    const head = table.split("\n")[0]!.split("|").map((s) => s.trim()).filter(Boolean);
-    const sizeRow = table.split("\n").find((l) => l.startsWith("| size / align"))!.split("|").map((s) => s.trim()).filter(Boolean);
+    const cells = (l: string) => l.trim().split("|").slice(1, -1).map((x) => x.trim());
+    const rows = table.split("\n").filter((l) => l.trim().startsWith("|"));
+    const head = cells(rows.find((l) => cells(l)[0] === "field")!);
+    const sizeRow = cells(rows.find((l) => cells(l)[0] === "size / align")!);
     const col = (t: string) => sizeRow[head.indexOf(t)];
     // x86-64 psABI: {float, uint32_t, double, uint8_t} → 24 bytes, 8-aligned (7 bytes tail padding)
     expect(col("x86_64")).toBe("24 / 8");
     // i386 psABI: double members are 4-aligned → 20 bytes, 4-aligned
     expect(col("i686")).toBe("20 / 4");
-    const offsets = table.split("\n").find((l) => l.startsWith("| snr_db"))!;
-    expect(offsets).toContain("@8 (8)");
+    const snr = cells(rows.find((l) => cells(l)[0] === "snr_db")!);
+    expect(snr[head.indexOf("x86_64")]).toBe("@8 (8)");
   });
 
   test("hover on a function shows the Rust and the C declarations", async () => {

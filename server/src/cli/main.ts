@@ -73,6 +73,11 @@ function parseArgs(argv: string[]): Opts {
     else if (flag === "--baseline") o.baseline = val();
     else if (flag === "--update-baseline") o.updateBaseline = true;
     else if (flag === "--stdio") o.stdio = true;
+    // Options language clients add when they start a server (vscode-languageclient appends
+    // --clientProcessId=N); vscode-languageserver reads them from argv itself.
+    else if (cmd === "lsp" && (flag === "--clientProcessId" || flag === "--node-ipc")) {
+      if (flag === "--node-ipc") o.stdio = true;
+    }
     else if (a === "--help" || a === "-h") throw new UsageError("");
     else if (a.startsWith("-")) throw new UsageError(`unknown option \`${a}\``);
     else o.paths.push(a);

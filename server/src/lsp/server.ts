@@ -314,23 +314,25 @@ export function startServer(conn?: Connection): void {
       }
       engine.diskChanged(file, c.type === FileChangeType.Deleted ? "deleted" : c.type === FileChangeType.Created ? "created" : "changed");
     }
-    if (reconfigure) await reconfigureAll("`.ferrule.toml` changed");
+    if (reconfigure) await reconfigureAll("`.ferrule.toml` changed", true);
     else schedule();
   });
 
-  async function reconfigureAll(reason: string): Promise<void> {
+  async function reconfigureAll(reason: string, onlyIfChanged = false): Promise<void> {
     await ready;
     if (!engine) return;
     settings = await fetchSettings();
-    const ws = new Workspace(configure());
-    engine.reset(ws);
+    const cfg = configure();
+    // Clients send didChangeConfiguration right after start; re-index only when something changed.
+    if (onlyIfChanged && JSON.stringify(cfg) === JSON.stringify(engine.ws.config)) return;
+    engine.reset(new Workspace(cfg));
     await scan(reason);
   }
 
   connection.onDidChangeConfiguration(async (p) => {
     const s = (p.settings as { ferrule?: EditorSettings } | undefined)?.ferrule;
     if (s) settings = s;
-    await reconfigureAll("settings changed");
+    await reconfigureAll("settings changed", true);
   });
 
   async function current(token?: CancellationToken): Promise<Engine> {
