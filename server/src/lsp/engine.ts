@@ -83,6 +83,10 @@ function keysOf(f: FileFacts | undefined): { decl: Set<string>; use: Set<string>
     }
   };
   for (const fn of f.fns) {
+    // Only what the model links across files (as in Model's symbol table): not file-local
+    // helpers, not plain Rust functions that are neither extern nor unmangled.
+    if ((fn as { internal?: boolean }).internal) continue;
+    if (fn.lang === "rust" && fn.role === "export" && !fn.noMangle && !fn.isExtern) continue;
     decl.add("s:" + fn.symbol);
     if (fn.name !== fn.symbol) decl.add("s:" + fn.name);
     fn.params.forEach((p) => typeRefs(p.type));
@@ -108,6 +112,8 @@ export interface AnalysisResult {
   changed: string[];
   scope: "full" | "scoped";
   ms: number;
+  /** Files in the sub-model of a scoped check. */
+  context?: number;
 }
 
 export class Engine {
@@ -125,6 +131,7 @@ export class Engine {
   /** Pending "full check" request (after config change or on idle). */
   needFull = true;
   roots: string[] = [];
+  lastContext = 0;
 
   constructor(ws: Workspace) {
     this.ws = ws;
@@ -277,6 +284,7 @@ export class Engine {
     }
     if (!full) {
       const { affected, context } = this.scopeOf(changed, oldKeys);
+      this.lastContext = context.size;
       if (context.size <= Math.max(40, this.fileKeys.size * 0.4)) {
         const { findings } = this.ws.checkSubset(context);
         const keep = this.findings.filter((f) => !affected.has(f.range.file));
@@ -284,7 +292,7 @@ export class Engine {
         this.findings = sortFindings([...keep, ...fresh]);
         this.fullModel = undefined;
         this.needFull = false;
-        return { findings: this.findings, affected, changed, scope: "scoped", ms: performance.now() - t0 };
+        return { findings: this.findings, affected, changed, scope: "scoped", ms: performance.now() - t0, context: context.size };
       }
     }
     this.ws.invalidate();

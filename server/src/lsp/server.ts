@@ -87,7 +87,7 @@ function cancelled(token: CancellationToken | undefined): void {
 }
 
 export interface ServerStats {
-  lastAnalysis?: { scope: string; ms: number; changed: number; affected: number | "all" };
+  lastAnalysis?: { scope: string; ms: number; changed: number; affected: number | "all"; context?: number };
 }
 
 export function startServer(conn?: Connection): void {
@@ -102,6 +102,7 @@ export function startServer(conn?: Connection): void {
   let idleTimer: NodeJS.Timeout | undefined;
   let generation = 0;
   const published = new Map<string, string>(); // file → JSON of the last diagnostics sent
+  const forcePublish = new Set<string>(); // just opened: send its diagnostics even if unchanged
   let byKey = new Map<string, Finding>();
   const stats: ServerStats = {};
 
@@ -190,7 +191,7 @@ export function startServer(conn?: Connection): void {
     // Analysis is synchronous; a newer run can only have started if this one re-entered, in which
     // case its (newer) result has already been published.
     if (myGen !== generation) return;
-    stats.lastAnalysis = { scope: res.scope, ms: Math.round(res.ms * 10) / 10, changed: res.changed.length, affected: res.affected === "all" ? "all" : res.affected.size };
+    stats.lastAnalysis = { scope: res.scope, ms: Math.round(res.ms * 10) / 10, changed: res.changed.length, affected: res.affected === "all" ? "all" : res.affected.size, context: engine.lastContext };
     byKey = new Map(res.findings.map((f) => [findingKey(f), f]));
     publish(res, versions);
     if (res.scope === "scoped" && res.changed.length) scheduleIdleFullCheck();
@@ -211,7 +212,9 @@ export function startServer(conn?: Connection): void {
       for (const [file, json] of published) if (json.includes('"mirror":true') && !diags.has(file)) candidates.add(file);
       for (const file of published.keys()) if (!diags.has(file)) candidates.add(file);
     }
-    const always = new Set(res.changed);
+    const always = new Set([...res.changed, ...forcePublish]);
+    for (const f of forcePublish) candidates.add(f);
+    forcePublish.clear();
     for (const file of candidates) {
       const list = diags.get(file) ?? [];
       const json = JSON.stringify(list);
@@ -274,6 +277,7 @@ export function startServer(conn?: Connection): void {
       return;
     }
     engine.open(file, p.textDocument.text, p.textDocument.version);
+    forcePublish.add(file);
     schedule(0);
   });
 
