@@ -11,3 +11,15 @@ describe("ffi-safety family", () => {
     expect(lines).toEqual([]);
   });
 });
+
+test("Option<Alias> where the alias is an extern \"C\" fn type (declared anywhere) is a nullable fn pointer", async () => {
+  const { analyze } = await import("../helpers/analyze.js");
+  const { findings, ws } = await analyze({
+    "cb.rs": "use crate::types::StrikeCb;\n#[no_mangle]\npub extern \"C\" fn ld_on(cb: Option<StrikeCb>) {}\n#[no_mangle]\npub extern \"C\" fn ld_bad(cb: Option<Counter>) {}\n",
+    "types.rs": "pub type StrikeCb = unsafe extern \"C\" fn(f32);\npub struct Counter { n: u32 }\n",
+    "cb.h": "typedef void (*strike_cb)(float);\nvoid ld_on(strike_cb cb);\n",
+  });
+  expect(findings.filter((f) => f.rule === "not-c-representable").map((f) => f.range.line + 1)).toEqual([5]);
+  expect(findings.filter((f) => f.rule === "callback-mismatch")).toEqual([]);
+  expect(ws.model().resolve(ws.facts("/ws/cb.rs")!.fns[0]!.params[0]!.type, "rust")).toMatchObject({ k: "fn", nullable: true });
+});

@@ -104,7 +104,8 @@ export function rustType(n: Node | null, ctx: RustCtx): AbiType {
         const inner = rustType(a0, ctx);
         if (inner.k === "ptr" && inner.via !== "raw") return { ...inner, nullable: true };
         if (inner.k === "fn") return { ...inner, nullable: true };
-        return { k: "unsafe", text: n.text, why: "Option<T> has a C layout only around a reference, Box, NonNull or function pointer" };
+        const why = "Option<T> has a C layout only around a reference, Box, NonNull or function pointer";
+        return inner.k === "named" ? { k: "unsafe", text: n.text, why, optionOf: inner } : { k: "unsafe", text: n.text, why };
       }
       if (last === "NonNull" && a0) return { k: "ptr", to: rustType(a0, ctx), mut: true, via: "nonnull", nullable: false };
       if (last === "Box" && a0) {

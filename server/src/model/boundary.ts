@@ -122,6 +122,11 @@ export class Model {
   /** Follows aliases, typedefs and #define aliases until a non-alias type. */
   resolve(t: AbiType, side: Side, depth = 0): AbiType {
     if (depth > 32) return { k: "unknown", text: "alias cycle" };
+    if (t.k === "unsafe" && t.optionOf) {
+      const inner = this.resolve(t.optionOf, side, depth + 1);
+      if (inner.k === "fn" || (inner.k === "ptr" && inner.via !== "raw")) return { ...inner, nullable: true };
+      return t;
+    }
     if (t.k === "named") {
       if (side === "c" && this.definesBy.has(t.name)) return this.resolve(this.definesBy.get(t.name)!, side, depth + 1);
       const decls = this.typeDecls(t.name, side);

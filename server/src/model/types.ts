@@ -29,7 +29,11 @@ export type AbiType =
   | { k: "named"; name: string; tag?: "struct" | "union" | "enum" }
   | { k: "fn"; params: AbiType[]; ret: AbiType; variadic: boolean; abi: string; nullable: boolean }
   /** A Rust type that has no C equivalent (Vec, String, &str, slices, tuples, generics, …). */
-  | { k: "unsafe"; text: string; why: string }
+  /**
+   * `optionOf`: an `Option<Name>` whose inner type is an alias the extractor cannot see yet; the
+   * model resolves it (an alias of a fn pointer or reference makes it a nullable pointer).
+   */
+  | { k: "unsafe"; text: string; why: string; optionOf?: AbiType }
   | { k: "unknown"; text: string };
 
 export interface Param {

@@ -13,6 +13,7 @@ export const NOT_C_TYPE: RuleMeta = {
 
 function problem(model: Model, t: AbiType, depth = 0): string | undefined {
   if (depth > 8) return undefined;
+  if (t.k === "unsafe" && t.optionOf) t = model.resolve(t, "rust");
   if (t.k === "unsafe") return t.why;
   if (t.k === "ptr") {
     const inner = model.resolve(t.to, "rust");
