@@ -6,7 +6,7 @@ import * as fs from "node:fs";
 import * as path from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import {
-  CodeActionKind, DiagnosticSeverity, DidChangeWatchedFilesNotification, FileChangeType, LSPErrorCodes,
+  CodeActionKind, DiagnosticSeverity, DidChangeWatchedFilesNotification, FileChangeType, LSPErrorCodes, MessageType, ShowMessageNotification,
   ProposedFeatures, ResponseError, SymbolKind, TextDocumentSyncKind, createConnection,
   type CancellationToken, type CodeAction, type Connection, type Diagnostic, type DocumentSymbol,
   type InitializeParams, type InitializeResult, type Location, type Range as LspRange, type TextEdit as LspTextEdit,
@@ -107,6 +107,8 @@ export function startServer(conn?: Connection): void {
   const stats: ServerStats = {};
 
   const log = (m: string) => connection.console.log(`[ferrule] ${m}`);
+  // A failed request to the client (e.g. one it does not implement) must not end the server.
+  process.on("unhandledRejection", (e) => connection.console.error(`[ferrule] ${(e as Error)?.message ?? e}`));
 
   async function fetchSettings(): Promise<EditorSettings | undefined> {
     if (caps.workspace?.configuration) {
@@ -126,7 +128,8 @@ export function startServer(conn?: Connection): void {
     for (const p of r.problems) {
       const msg = `ferrule configuration: ${p.message} (ignored; ferrule keeps working with the other settings and the defaults)`;
       connection.console.warn(msg);
-      void connection.window.showWarningMessage(msg);
+      // a notification, not window/showMessageRequest: nothing to await, nothing to fail
+      void connection.sendNotification(ShowMessageNotification.type, { type: MessageType.Warning, message: msg });
     }
     return r.config;
   }
