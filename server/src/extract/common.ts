@@ -176,4 +176,27 @@ export function walk(root: Node, visit: (n: Node) => boolean | void, maxDepth = 
   }
 }
 
+/**
+ * `walk` restricted to the node types in `types`: visits, in the same (document) order, exactly the
+ * nodes `walk(root, (n) => types.includes(n.type) ? visit(n) : undefined)` would, and `visit`
+ * returning false leaves out that node's descendants in the same way. The nodes are found inside
+ * wasm in one call (tree-sitter's descendants-of-type search), so the nodes between them never
+ * become JS objects — much faster than a JS walk when the types are rare (calls, declarations,
+ * function definitions). Unlike `walk` there is no depth cut-off: nodes deeper than 400 levels are
+ * visited too (the visitors guard their own recursion). Checks the time budget like `walk`.
+ */
+export function walkTypes(root: Node, types: readonly string[], visit: (n: Node) => boolean | void): void {
+  const found = root.descendantsOfType(types as string[]);
+  let count = 0;
+  // Nodes are in preorder, so a node whose visit returned false covers the ones that follow it
+  // up to its end offset; nothing inside it is visited, so one offset is enough.
+  let skipEnd = -1;
+  for (let i = 0; i < found.length; i++) {
+    const n = found[i]!;
+    if ((++count & 511) === 0 && performance.now() > deadline) throw new ExtractTimeout(`extraction stopped after ${budgetMs} ms`);
+    if (n.startIndex < skipEnd) continue; // inside a node whose visit returned false
+    if (visit(n) === false) skipEnd = n.endIndex;
+  }
+}
+
 export const VOID: AbiType = { k: "void" };

@@ -18,7 +18,7 @@ import type { AbiType, CallSite, Expr, FileFacts, FnDecl, Range } from "../../mo
 import type { BufferHint, CBufferFacts, CFnScope, CVar, RustBufferFacts } from "../../model/buffer-facts.js";
 import { parseText } from "../../parse/parser.js";
 import { cFileExtractors, rustExtractors } from "../hooks.js";
-import { evalConst, parseIntLit, rangeOf, walk } from "../common.js";
+import { evalConst, parseIntLit, rangeOf, walk, walkTypes } from "../common.js";
 import { applyDeclarator, cScalar, readParams, typeFromSpecifier, type DeclCtx } from "../ctypes.js";
 import { rustType } from "../rust.js";
 
@@ -375,7 +375,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   const ctx: DeclCtx = { file, consts: new Map() };
   const out: CBufferFacts = { fns: [] };
   const classes = new Map<string, Node>();
-  walk(root, (n) => {
+  walkTypes(root, ["class_specifier", "struct_specifier", "preproc_def", "enumerator", "compound_statement"], (n) => {
     if ((n.type === "class_specifier" || n.type === "struct_specifier") && n.childForFieldName("body")) {
       const nm = n.childForFieldName("name")?.text;
       if (nm && !classes.has(nm)) classes.set(nm, n);
@@ -396,7 +396,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   // File-scope variables (`static const float table[64]`), visible in every function.
   const globals: CVar[] = [];
   const gScope = new Scope(globals);
-  walk(root, (n) => {
+  walkTypes(root, ["function_definition", "class_specifier", "compound_statement", "declaration"], (n) => {
     if (n.type === "function_definition" || n.type === "class_specifier" || n.type === "compound_statement") return false;
     if (n.type === "declaration") {
       const vs = varsFromDeclaration(n, "global", file, ctx, gScope);
@@ -407,8 +407,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   });
   const fieldCache = new Map<string, CVar[]>();
   const calls: CallSite[] = [];
-  walk(root, (n) => {
-    if (n.type !== "function_definition") return;
+  walkTypes(root, ["function_definition"], (n) => {
     const fd = fnDeclaratorOf(n);
     const nameNode = fd?.childForFieldName("declarator");
     if (!fd || !nameNode) return false;
@@ -437,7 +436,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
     const scope = new Scope(vars);
     const body = n.childForFieldName("body");
     // Locals first (declarations anywhere in the body; lookups pick the one in force by line).
-    walk(n, (m) => {
+    walkTypes(n, ["declaration", "lambda_expression", "class_specifier"], (m) => {
       if (m.type === "declaration" && m !== n) {
         vars.push(...varsFromDeclaration(m, "local", file, ctx, scope));
         return;
@@ -454,9 +453,9 @@ function extractCFile(root: Node, facts: FileFacts): void {
     if (body) roots.push(body);
     for (const c of n.namedChildren) if (c.type === "field_initializer_list") roots.push(c);
     for (const r of roots) {
-      walk(r, (m) => {
+      walkTypes(r, ["lambda_expression", "call_expression"], (m) => {
         if (m.type === "lambda_expression") return false;
-        if (m.type !== "call_expression" || calls.length >= MAX_CALLS_PER_FILE) return;
+        if (calls.length >= MAX_CALLS_PER_FILE) return;
         const cs = callSite(m, scope, ctx, file);
         if (cs) {
           cs.inFn = method;
@@ -585,9 +584,8 @@ function collectCHints(facts: FileFacts, nullFix: Map<string, string>): void {
  * in an ERROR node right after the parameter. Returns param position → real name. */
 function nullabilityNames(root: Node): Map<string, string> {
   const out = new Map<string, string>();
-  walk(root, (n) => {
+  walkTypes(root, ["compound_statement", "parameter_declaration"], (n) => {
     if (n.type === "compound_statement") return false;
-    if (n.type !== "parameter_declaration") return;
     if (!/\b(_Nullable|_Nonnull|_Null_unspecified|__nullable|__nonnull)\s*$/.test(n.text)) return false;
     const next = n.nextSibling;
     const id = next?.type === "ERROR" ? next.namedChildren.find((c) => c.type === "identifier") : undefined;
@@ -733,10 +731,12 @@ function extractRustBody(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
   };
   const bindPattern = (pat: Node | null) => {
     if (!pat) return;
-    walk(pat, (m) => { if (m.type === "identifier") bound.set(m.text, undefined); });
+    walkTypes(pat, ["identifier"], (m) => { bound.set(m.text, undefined); });
   };
   const base = fnNode.startIndex;
-  walk(body, (n) => {
+  // Only these node types matter below (visitNode's and the binders'); the rest are found in wasm.
+  const VISITED = ["call_expression", "binary_expression", "assignment_expression", "compound_assignment_expr", "unary_expression"];
+  walkTypes(body, ["function_item", "closure_expression", "for_expression", "let_condition", "match_arm", "let_declaration", ...VISITED], (n) => {
     const pos = n.startIndex - base;
     switch (n.type) {
       case "function_item":
@@ -772,7 +772,7 @@ function extractRustBody(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
   });
 
   function walkValue(val: Node) {
-    walk(val, (m) => {
+    walkTypes(val, ["function_item", "closure_expression", ...VISITED], (m) => {
       if (m.type === "function_item") return false;
       if (m.type === "closure_expression") bindPattern(m.childForFieldName("parameters"));
       visitNode(m, m.startIndex - base);
