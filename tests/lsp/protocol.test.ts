@@ -10,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, test } from "vitest";
 import * as fs from "node:fs";
 import * as os from "node:os";
 import * as path from "node:path";
-import { CodeActionRequest, DefinitionRequest, DocumentSymbolRequest, HoverRequest, ReferencesRequest, type CodeAction, type Location } from "vscode-languageserver-protocol/node";
+import { CodeActionRequest, DefinitionRequest, DidChangeWatchedFilesNotification, FileChangeType, DocumentSymbolRequest, HoverRequest, ReferencesRequest, type CodeAction, type Location } from "vscode-languageserver-protocol/node";
 import { ROOT, applyEdits, editsFor, messages, startClient, uri, type Client } from "./client.js";
 
 const DEMO_SRC = path.join(ROOT, "test-fixtures/sonar-demo");
@@ -183,5 +183,23 @@ describe("ferrule lsp --stdio on the demo", () => {
     expect(text).toContain('extern "C" {');
     expect(text).toMatch(/int sonar_fir_process\(sonar_fir \*h, const float \*input, float \*output, size_t n\);|sonar_fir_process\(/);
     expect(text).not.toContain("sonar_set_gain"); // not exported under its name (no #[no_mangle])
+  });
+
+  test("a change on disk to a file that is not open (workspace/didChangeWatchedFiles) updates both sides", async () => {
+    const spec = path.join(DEMO, "kernels/src/spectrum.rs");
+    const sh = path.join(DEMO, "include/sonar_spectrum.h");
+    const t = fs.readFileSync(spec, "utf8");
+    const hl = fs.readFileSync(sh, "utf8").split("\n").findIndex((l) => l.includes("sonar_spec_db("));
+    const has = () => messages(c, sh).some((d) => d.code === "param-type-mismatch" && d.range.start.line === hl);
+    expect(has()).toBe(false);
+    // the Rust side now takes f64 items: the header's `const float *power` disagrees
+    const changed = t.replace(/fn sonar_spec_db\(power: \*const f32/, "fn sonar_spec_db(power: *const f64");
+    expect(changed).not.toBe(t);
+    fs.writeFileSync(spec, changed);
+    await c.conn.sendNotification(DidChangeWatchedFilesNotification.type, { changes: [{ uri: uri(spec), type: FileChangeType.Changed }] });
+    await c.waitFor(has, 20_000, "the mismatch from the disk change");
+    fs.writeFileSync(spec, t);
+    await c.conn.sendNotification(DidChangeWatchedFilesNotification.type, { changes: [{ uri: uri(spec), type: FileChangeType.Changed }] });
+    await c.waitFor(() => !has(), 20_000, "the mismatch to clear");
   });
 });
