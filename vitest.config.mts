@@ -1,4 +1,5 @@
 import { defineConfig } from "vitest/config";
+import SummaryReporter from "./tests/support/summary-reporter.js";
 
 export default defineConfig({
   test: {
@@ -8,5 +9,6 @@ export default defineConfig({
     hookTimeout: 300_000,
     pool: "forks",
     maxWorkers: 2,
+    reporters: ["default", new SummaryReporter("vitest")],
   },
 });

@@ -1,6 +1,6 @@
 // `npm run test:e2e`: the real-VS-Code end-to-end test (tests/e2e/), kept out of the default run.
 import { defineConfig } from "vitest/config";
-import SummaryReporter from "./tests/e2e/summary-reporter.js";
+import SummaryReporter from "./tests/support/summary-reporter.js";
 
 export default defineConfig({
   test: {
@@ -10,6 +10,6 @@ export default defineConfig({
     pool: "forks",
     maxWorkers: 1,
     fileParallelism: false,
-    reporters: ["default", new SummaryReporter()],
+    reporters: ["default", new SummaryReporter("e2e")],
   },
 });

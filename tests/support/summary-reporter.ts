@@ -1,7 +1,9 @@
-// Prints one summary line for `npm run test:e2e`: "e2e: N passed, M failed".
+// Prints one closing summary line, "<label>: N passed, M failed[, K skipped]", after a vitest run.
 import type { Reporter, TestModule } from "vitest/node";
 
 export default class SummaryReporter implements Reporter {
+  constructor(private readonly label = "tests") {}
+
   onTestRunEnd(modules: ReadonlyArray<TestModule>, errors: ReadonlyArray<unknown>): void {
     let passed = 0;
     let failed = 0;
@@ -16,6 +18,6 @@ export default class SummaryReporter implements Reporter {
       if (m.state() === "failed" && ![...m.children.allTests()].some((t) => t.result().state === "failed")) failed++; // a failed hook
     }
     failed += errors.length;
-    process.stdout.write(`\ne2e: ${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ""}\n`);
+    process.stdout.write(`\n${this.label}: ${passed} passed, ${failed} failed${skipped ? `, ${skipped} skipped` : ""}\n`);
   }
 }
