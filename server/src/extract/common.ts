@@ -176,6 +176,9 @@ export function walk(root: Node, visit: (n: Node) => boolean | void, maxDepth = 
   }
 }
 
+const SMALL_SUBTREE = 48; // characters
+const typeSets = new WeakMap<readonly string[], Set<string>>();
+
 /**
  * `walk` restricted to the node types in `types`: visits, in the same (document) order, exactly the
  * nodes `walk(root, (n) => types.includes(n.type) ? visit(n) : undefined)` would, and `visit`
@@ -186,6 +189,15 @@ export function walk(root: Node, visit: (n: Node) => boolean | void, maxDepth = 
  * visited too (the visitors guard their own recursion). Checks the time budget like `walk`.
  */
 export function walkTypes(root: Node, types: readonly string[], visit: (n: Node) => boolean | void): void {
+  if (root.endIndex - root.startIndex < SMALL_SUBTREE) {
+    // A few nodes: the JS walk is cheaper than the wasm search's fixed cost (it scans every
+    // node type of the grammar to build its symbol list).
+    let set = typeSets.get(types);
+    if (!set) typeSets.set(types, (set = new Set(types)));
+    const s = set;
+    walk(root, (n) => (s.has(n.type) ? visit(n) : undefined));
+    return;
+  }
   const found = root.descendantsOfType(types as string[]);
   let count = 0;
   // Nodes are in preorder, so a node whose visit returned false covers the ones that follow it

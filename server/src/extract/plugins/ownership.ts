@@ -20,7 +20,7 @@ import type { FileFacts, FnDecl, Range } from "../../model/types.js";
 import type {
   CArg, CClass, CEvent, CField, CFlow, COwnFacts, CRef, MemberKind, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl,
 } from "../../model/ownership.js";
-import { rangeOf, walk } from "../common.js";
+import { rangeOf, walk, walkTypes } from "../common.js";
 import { cFileExtractors, rustExtractors } from "../hooks.js";
 
 // ---------------------------------------------------------------- Rust
@@ -28,6 +28,8 @@ import { cFileExtractors, rustExtractors } from "../hooks.js";
 const INT_PRIMS = new Set(["i8", "u8", "i16", "u16", "i32", "u32", "i64", "u64", "i128", "u128", "isize", "usize",
   "c_int", "c_uint", "c_long", "c_ulong", "c_short", "c_ushort", "c_longlong", "c_ulonglong", "size_t", "c_char", "c_uchar", "c_schar"]);
 
+/** The node types extractRustFn's body walk acts on (the others are found inside wasm). */
+const RUST_VISITED = ["function_item", "impl_item", "mod_item", "let_declaration", "reference_expression", "macro_invocation", "index_expression", "binary_expression", "compound_assignment_expr", "call_expression"];
 const PANIC_MACROS: Record<string, RustOwnFacts["panics"][number]["kind"]> = {
   panic: "panic", unreachable: "unreachable", todo: "todo", unimplemented: "todo",
   assert: "assert", assert_eq: "assert", assert_ne: "assert",
@@ -166,7 +168,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     return undefined;
   };
 
-  walk(body, (n) => {
+  walkTypes(body, RUST_VISITED, (n) => {
     if (n.type === "function_item" || n.type === "impl_item" || n.type === "mod_item") return false;
     switch (n.type) {
       case "let_declaration": {
@@ -532,6 +534,11 @@ const EXIT_STMTS = new Set(["return_statement", "throw_statement", "break_statem
  */
 let stmtExits = new Map<number, boolean>();
 let curExits = false;
+/** Node types visitExpr visits in the current file: the ones its switch handles, plus every type
+ * that occurs as a statement of a block in the file (those carry stmtExits entries), so walking
+ * only these types visits every node the full walk would act on. */
+let exprTypes: string[] = [];
+const EXPR_TYPES = ["compound_statement", "lambda_expression", "declaration", "assignment_expression", "delete_expression", "return_statement", "call_expression", "field_expression", "identifier"];
 
 function enterBlock(block: Node, isFunctionBody: boolean): void {
   const kids = block.namedChildren;
@@ -606,7 +613,7 @@ function extractFlow(def: Node, file: string, className: string | undefined, out
 /** Walks statements/expressions in source order, appending events to the flow. */
 function visitExpr(root: Node, file: string, flow: CFlow & { bodyId?: number }): void {
   const ev = flow.events;
-  walk(root, (n) => {
+  walkTypes(root, exprTypes, (n) => {
     const se = stmtExits.get(n.id);
     if (se !== undefined) curExits = se;
     switch (n.type) {
@@ -778,7 +785,10 @@ function extractCFile(root: Node, facts: FileFacts): void {
   const file = facts.file;
   const flows: CFlow[] = [];
   const classes: CClass[] = [];
-  walk(root, (n) => {
+  const types = new Set(EXPR_TYPES);
+  for (const b of root.descendantsOfType("compound_statement")) for (const k of b.namedChildren) types.add(k.type);
+  exprTypes = [...types];
+  walkTypes(root, ["class_specifier", "struct_specifier", "function_definition"], (n) => {
     if ((n.type === "class_specifier" || n.type === "struct_specifier") && n.childForFieldName("body") && facts.lang === "cpp") {
       const c = extractClass(n, file, flows);
       if (c) classes.push(c);
