@@ -12,7 +12,9 @@ import type { Suppression } from "../model/types.js";
 
 export type { Suppression };
 
-export const SUPPRESSION_RULE = "suppression-without-reason";
+import { SUPPRESSION_WITHOUT_REASON } from "../rules/index.js";
+
+export const SUPPRESSION_RULE = SUPPRESSION_WITHOUT_REASON.id;
 
 export function applySuppressions(findings: Finding[], model: Model): Finding[] {
   const out: Finding[] = [];

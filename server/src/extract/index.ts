@@ -1,7 +1,7 @@
 // Extract layer entry: (path, text) → FileFacts. A pure function of its inputs, so callers may
 // cache the result by content hash. Never throws: trouble becomes a notice on the file.
 
-import { getLanguage, initParsers, isHeader, langOf, parseText, ParseTimeout, type Tree } from "../parse/parser.js";
+import { getLanguage, grammarQuery, initParsers, isHeader, langOf, parseText, ParseTimeout, type Tree } from "../parse/parser.js";
 import type { FileFacts, Lang } from "../model/types.js";
 import { emptyFacts, ExtractTimeout, extractDeadlinePassed, setExtractDeadline } from "./common.js";
 import { extractC } from "./c.js";
@@ -17,30 +17,21 @@ export const DEFAULT_MAX_FILE_BYTES = 2_000_000;
 const ALLOW_RE = /ferrule-allow\(([^)]*)\)\s*(?::\s*(.*?))?\s*(?:\*\/)?$/;
 
 /** Collects `ferrule-allow(rule): reason` comments (comment nodes only, found by a cursor walk). */
+/** Collects `ferrule-allow(rule): reason` comments, found with a tree-sitter query (runs in wasm). */
 function collectSuppressions(t: Tree, facts: FileFacts): void {
   const out: Suppression[] = [];
-  const c = t.rootNode.walk();
-  let steps = 0;
-  for (;;) {
-    if (steps++ > 2_000_000) break;
-    const type = c.nodeType;
-    if (type === "comment" || type === "line_comment" || type === "block_comment") {
-      const node = c.currentNode;
-      const m = ALLOW_RE.exec(node.text.trim());
-      if (m) {
-        out.push({
-          line: node.startPosition.row, endLine: node.endPosition.row,
-          rules: m[1]!.split(",").map((x) => x.trim()).filter(Boolean),
-          reason: (m[2] ?? "").trim(),
-          range: { file: facts.file, line: node.startPosition.row, col: node.startPosition.column, endLine: node.endPosition.row, endCol: node.endPosition.column },
-        });
-      }
-    } else if (c.gotoFirstChild()) continue;
-    while (!c.gotoNextSibling()) {
-      if (!c.gotoParent()) { c.delete(); facts.extra.suppressions = out; return; }
-    }
+  const lang: Lang = facts.lang === "rust" ? "rust" : t.getLanguage() === getLanguage("cpp") ? "cpp" : "c";
+  const q = grammarQuery(lang, lang === "rust" ? "comments-rust.scm" : "comments-c.scm");
+  for (const { node } of q.captures(t.rootNode)) {
+    const m = ALLOW_RE.exec(node.text.trim());
+    if (!m) continue;
+    out.push({
+      line: node.startPosition.row, endLine: node.endPosition.row,
+      rules: m[1]!.split(",").map((x) => x.trim()).filter(Boolean),
+      reason: (m[2] ?? "").trim(),
+      range: { file: facts.file, line: node.startPosition.row, col: node.startPosition.column, endLine: node.endPosition.row, endCol: node.endPosition.column },
+    });
   }
-  c.delete();
   facts.extra.suppressions = out;
 }
 

@@ -1,7 +1,7 @@
 // Parse layer: text → tree-sitter tree. Grammars are loaded once per process (see grammars/).
 // Callers own the returned tree and must delete() it (trees live in wasm memory).
 
-import { Parser, loadLanguage, type GrammarName } from "../../../grammars/index.js";
+import { Parser, loadLanguage, queryText, type GrammarName } from "../../../grammars/index.js";
 import type { Lang } from "../model/types.js";
 
 export type Tree = Parser.Tree;
@@ -121,4 +121,17 @@ export function langOf(file: string): Lang | undefined {
 
 export function isHeader(file: string): boolean {
   return /\.(h|hpp|hh|hxx)$/i.test(file);
+}
+
+const queries = new Map<string, Parser.Query>();
+
+/** A query file of grammars/queries compiled for a grammar, once per process. */
+export function grammarQuery(lang: Lang, file: string): Parser.Query {
+  const key = `${lang}:${file}`;
+  let q = queries.get(key);
+  if (!q) {
+    q = getLanguage(lang).query(queryText(file));
+    queries.set(key, q);
+  }
+  return q;
 }

@@ -31,6 +31,13 @@ export const UNKNOWN_MACRO: RuleMeta = {
   why: "The affected type is not checked; list export/attribute macros in `strip_macros` so ferrule reads the declaration.",
 };
 
+export const SUPPRESSION_WITHOUT_REASON: RuleMeta = {
+  id: "suppression-without-reason",
+  severity: "warning",
+  summary: "A `ferrule-allow(rule)` comment has no reason after the colon, so it suppresses nothing.",
+  why: "Every silenced finding should carry a written justification next to it.",
+};
+
 export const FAMILIES: RuleFamily[] = [
   symbolsFamily, signaturesFamily, ffiSafetyFamily, linkageFamily, layoutFamily, buffersFamily, ownershipFamily,
 ];
@@ -41,7 +48,7 @@ export function registerFamily(f: RuleFamily): void {
 }
 
 export function allRules(): RuleMeta[] {
-  return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO];
+  return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON];
 }
 
 export function runFamily(f: RuleFamily, model: Model): Finding[] {
