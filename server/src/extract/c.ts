@@ -3,9 +3,15 @@
 
 import type { Node, Tree } from "../parse/parser.js";
 import type { AbiType, Field, FileFacts, FnDecl, Lang, SourceAssert, TypeDecl } from "../model/types.js";
-import { docAbove, emptyFacts, evalConst, rangeOf, trailingComment, walk } from "./common.js";
+import { docAbove, emptyFacts, evalConst, rangeOf, trailingComment, walkTypes } from "./common.js";
 import { applyDeclarator, complexBase, cScalar, typeFromSpecifier, type DeclCtx } from "./ctypes.js";
 import { cFileExtractors } from "./hooks.js";
+
+const C_VISITED = [
+  "preproc_include", "preproc_def", "preproc_call", "function_definition", "declaration", "field_declaration", "type_definition",
+  "struct_specifier", "union_specifier", "enum_specifier", "call_expression", "static_assert_declaration", "class_specifier",
+  "template_declaration", "compound_statement",
+];
 
 const HEADER_RE = /\.(h|hpp|hh|hxx)$/i;
 
@@ -177,7 +183,8 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
     facts.fns.push(fn);
   };
 
-  walk(root, (n) => {
+  // Every type the switch below acts on; the nodes in between are found inside wasm.
+  walkTypes(root, C_VISITED, (n) => {
     switch (n.type) {
       case "preproc_include": {
         const p = n.childForFieldName("path");

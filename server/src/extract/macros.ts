@@ -5,13 +5,13 @@
 // the same file are found automatically; others come from the `strip_macros` setting.
 
 import type { Node, Tree } from "../parse/parser.js";
-import { walk } from "./common.js";
+import { walkTypes } from "./common.js";
 
 const ATTRIBUTE_LIKE = /^(__attribute__|__declspec|__cdecl|__stdcall|__fastcall|__vectorcall|extern|static|inline|__inline|__forceinline|_Noreturn|__extension__)\b/;
 
 function macroNames(root: Node, extra: readonly string[]): Set<string> {
   const names = new Set(extra);
-  walk(root, (n) => {
+  walkTypes(root, ["preproc_def", "function_definition", "compound_statement"], (n) => {
     if (n.type === "preproc_def") {
       const name = n.childForFieldName("name")?.text;
       const value = n.childForFieldName("value")?.text.trim() ?? "";
@@ -29,9 +29,9 @@ export function blankAttributeMacros(tree: Tree, text: string, extra: readonly s
   const names = macroNames(tree.rootNode, extra);
   if (names.size === 0) return undefined;
   const spans: [number, number][] = [];
-  walk(tree.rootNode, (n) => {
+  walkTypes(tree.rootNode, ["preproc_def", "identifier", "type_identifier"], (n) => {
     if (n.type === "preproc_def") return false;
-    if ((n.type === "identifier" || n.type === "type_identifier") && names.has(n.text)) {
+    if (names.has(n.text)) {
       const p = n.parent?.type ?? "";
       // keep `#ifdef SONAR_API` and `#define SONAR_API` themselves
       if (!p.startsWith("preproc_")) spans.push([n.startIndex, n.endIndex]);
