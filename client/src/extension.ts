@@ -25,7 +25,9 @@ class LayoutDocs implements vscode.TextDocumentContentProvider {
 export async function activate(context: vscode.ExtensionContext): Promise<void> {
   const serverModule = context.asAbsolutePath(path.join("dist", "cli.js"));
   const serverOptions: ServerOptions = {
-    run: { module: serverModule, transport: TransportKind.stdio, args: ["lsp"] },
+    // Same heap flags as `npx ferrule lsp` (bin/ferrule.js): a capped young generation keeps the
+    // long-lived server from growing its heap under a stream of edits.
+    run: { module: serverModule, transport: TransportKind.stdio, args: ["lsp"], options: { execArgv: ["--max-semi-space-size=1"] } },
     debug: { module: serverModule, transport: TransportKind.stdio, args: ["lsp"] },
   };
   const clientOptions: LanguageClientOptions = {

@@ -1,4 +1,4 @@
-// (see the note at the RSS assertion: the 10 % bound is strict only with FERRULE_LSP_RSS_STRICT=1)
+// (the RSS bound is the issue's 10 %; see the note at the assertion)
 // The language server under 10,000 random edits to its open documents (incremental didChange,
 // fast-check with a fixed seed; NUL bytes, lone surrogates, deep brackets and whole-text
 // replacements among them): the server never dies, keeps answering requests, and its resident
@@ -19,7 +19,8 @@ const BATCH = 100;
 let tmp: string;
 let client: Client | undefined;
 
-/** The server's node process: the descendant of the spawned npx whose command line is `… lsp --stdio`. */
+/** The server's node process: the deepest descendant of the spawned npx whose command line is
+ * `… lsp --stdio` (bin/ferrule.js re-executes node with heap flags for the server). */
 function serverPid(root: number): number | undefined {
   const kids = new Map<number, number[]>();
   for (const d of fs.readdirSync("/proc")) {
@@ -31,15 +32,16 @@ function serverPid(root: number): number | undefined {
     } catch { /* gone */ }
   }
   const todo = [root];
+  let found: number | undefined;
   while (todo.length) {
     const p = todo.shift()!;
     try {
       const cmd = fs.readFileSync(`/proc/${p}/cmdline`, "utf8").split("\0");
-      if (cmd.some((a) => /node$/.test(a)) && cmd.includes("lsp") && cmd.includes("--stdio") && !cmd.some((a) => a.endsWith("npx") || a.endsWith("npx-cli.js"))) return p;
+      if (cmd.some((a) => /node$/.test(a)) && cmd.includes("lsp") && cmd.includes("--stdio") && !cmd.some((a) => a.endsWith("npx") || a.endsWith("npx-cli.js"))) found = p;
     } catch { /* gone */ }
     todo.push(...(kids.get(p) ?? []));
   }
-  return undefined;
+  return found;
 }
 
 function rssKiB(pid: number): number {
@@ -60,7 +62,7 @@ afterAll(async () => {
 });
 
 describe("language server under random edits", () => {
-  test(`${EDITS.toLocaleString("en-US")} random edits: alive, answering; RSS after all vs after the first 1,000 (≤ 2×; ≤ 1.1× with FERRULE_LSP_RSS_STRICT=1)`, async () => {
+  test(`${EDITS.toLocaleString("en-US")} random edits: alive, answering; RSS after all vs after the first 1,000 (≤ 1.1×)`, async () => {
     const c = client!;
     const files = ["include/sonar_kernels.h", "kernels/src/lib.rs", "blocks/beamformer_block.cc"].map((f) => path.join(tmp, f)).filter((f) => fs.existsSync(f));
     const originals = new Map(files.map((f) => [f, fs.readFileSync(f, "utf8")]));
@@ -106,21 +108,21 @@ describe("language server under random edits", () => {
         await sleep(2500); // let the idle full check run
         await sync(file);
         rssAt1k = rssKiB(pid!);
+        if (process.env.FERRULE_LSP_MEM_DEBUG) console.log("[lsp-memory] at 1k", JSON.stringify((await c.conn.sendRequest("ferrule/stats")) as object));
       }
       if (c.proc.exitCode !== null) throw new Error(`server exited after edit ${i}: ${c.stderr.join("")}`);
     }
     await sleep(2500);
     for (const f of files) await sync(f);
     const rssEnd = rssKiB(pid!);
+    if (process.env.FERRULE_LSP_MEM_DEBUG) console.log("[lsp-memory] at end", JSON.stringify((await c.conn.sendRequest("ferrule/stats")) as object));
     console.log(`[lsp-memory] server RSS after 1,000 edits: ${(rssAt1k / 1024).toFixed(1)} MiB; after ${EDITS.toLocaleString("en-US")}: ${(rssEnd / 1024).toFixed(1)} MiB`);
-    // The issue's bound (within 10 %) is NOT met yet: measured 95 → 131 MiB over 10,000 edits and
-    // 176 MiB over 100,000 (2-core machine, Node 20). Diagnosis so far: the live data is small —
-    // driving the same Engine in-process for 40,000 edits keeps the JS heap at 8 MiB and the wasm
-    // memory flat, and the server survives 10,000 edits under --max-old-space-size=40 — so the
-    // growth is V8 growing its young/old generations lazily, not a leak; the fix belongs in how the
-    // server process is started (heap flags) or an idle-time GC. Until then the bound is checked
-    // only with FERRULE_LSP_RSS_STRICT=1; a 2× bound always holds it against a real leak.
-    expect(rssEnd).toBeLessThanOrEqual(rssAt1k * (process.env.FERRULE_LSP_RSS_STRICT === "1" ? 1.1 : 2));
+    // The issue's bound: within 10 % of the RSS after the first 1,000 edits. Met since the server
+    // runs with a capped young generation (bin/ferrule.js, client/src/extension.ts: measured
+    // 89 → 96 MiB); before, V8 grew its semi-spaces to the maximum (95 → 125 MiB) while the live
+    // data stayed ~10 MiB. FERRULE_LSP_RSS_LOOSE=1 relaxes it to 2× (a leak check only) on a
+    // machine too noisy to measure.
+    expect(rssEnd).toBeLessThanOrEqual(rssAt1k * (process.env.FERRULE_LSP_RSS_LOOSE === "1" ? 2 : 1.1));
     // still useful: restore the demo and the findings come back
     for (const f of files) c.change(f, [{ text: originals.get(f)! }]);
     const header = files[0]!;

@@ -24,9 +24,12 @@ import { cHeaderFor } from "../fixes/cgen.js";
 import { Engine, relPath, type AnalysisResult } from "./engine.js";
 import { resolveConfig, type EditorSettings } from "./config.js";
 import { definitions, documentSymbols, hoverMarkdown, itemAt, layoutDocument, references } from "./features.js";
+import * as v8 from "node:v8";
+import * as vm from "node:vm";
 
 export const GENERATE_HEADER_KIND = "source.generateCDeclarations.ferrule";
 const DEBOUNCE_MS = 12;
+let gcFn: (() => void) | undefined;
 const IDLE_FULL_CHECK_MS = 2000;
 
 const toUri = (file: string) => pathToFileURL(file).href;
@@ -153,6 +156,23 @@ export function startServer(conn?: Connection): void {
     log(`indexed ${n} files in ${Math.round(performance.now() - t0)} ms (${reason})`);
   }
 
+  /**
+   * A full garbage collection once the user pauses: V8 otherwise grows its heap lazily under a
+   * stream of edits (RSS +30 % over 10,000 edits while the live data stays ~8 MiB). Collecting
+   * when idle gives the memory back; it costs a few milliseconds on a heap that small.
+   */
+  function idleGc(): void {
+    try {
+      if (!gcFn) {
+        v8.setFlagsFromString("--expose-gc");
+        gcFn = vm.runInNewContext("gc") as () => void;
+      }
+      gcFn();
+    } catch {
+      /* no GC hook on this runtime: nothing to do */
+    }
+  }
+
   function schedule(delay = DEBOUNCE_MS): void {
     if (timer) clearTimeout(timer);
     timer = setTimeout(() => {
@@ -168,6 +188,7 @@ export function startServer(conn?: Connection): void {
       if (!engine) return;
       engine.needFull = true;
       runAnalysis(false);
+      idleGc();
     }, IDLE_FULL_CHECK_MS);
   }
 
@@ -507,7 +528,7 @@ export function startServer(conn?: Connection): void {
   });
 
   /** ferrule/stats: timings of the last analysis (used by the benchmark). */
-  connection.onRequest("ferrule/stats", async () => ({ ...stats, files: engine?.ws.files().length ?? 0, findings: engine?.findings.length ?? 0 }));
+  connection.onRequest("ferrule/stats", async () => ({ ...stats, files: engine?.ws.files().length ?? 0, findings: engine?.findings.length ?? 0, memory: process.memoryUsage() }));
 
   connection.onShutdown(() => {
     if (timer) clearTimeout(timer);
