@@ -372,35 +372,33 @@ export function startServer(conn?: Connection): void {
     return engine;
   }
 
-  connection.onHover(async (p, token) => {
+  /** The boundary item under the cursor of a position request, with the current engine. */
+  async function itemRequest(p: { textDocument: { uri: string }; position: { line: number; character: number } }, token: CancellationToken | undefined) {
     const e = await current(token);
     const file = toFile(p.textDocument.uri);
     if (!file) return null;
     const model = e.model();
     const item = itemAt(model, file, p.position);
-    if (!item) return null;
+    return item ? { e, file, model, item } : null;
+  }
+
+  connection.onHover(async (p, token) => {
+    const r = await itemRequest(p, token);
+    if (!r) return null;
     cancelled(token);
-    return { contents: { kind: "markdown", value: hoverMarkdown(model, item, (f) => e.text(f), roots) }, range: lspRange(item.at) };
+    return { contents: { kind: "markdown", value: hoverMarkdown(r.model, r.item, (f) => r.e.text(f), roots) }, range: lspRange(r.item.at) };
   });
 
   connection.onDefinition(async (p, token) => {
-    const e = await current(token);
-    const file = toFile(p.textDocument.uri);
-    if (!file) return null;
-    const model = e.model();
-    const item = itemAt(model, file, p.position);
-    if (!item) return null;
-    return definitions(model, item, file).map((r): Location => ({ uri: toUri(r.file), range: lspRange(r) }));
+    const r = await itemRequest(p, token);
+    if (!r) return null;
+    return definitions(r.model, r.item, r.file).map((l): Location => ({ uri: toUri(l.file), range: lspRange(l) }));
   });
 
   connection.onReferences(async (p, token) => {
-    const e = await current(token);
-    const file = toFile(p.textDocument.uri);
-    if (!file) return null;
-    const model = e.model();
-    const item = itemAt(model, file, p.position);
-    if (!item) return null;
-    return references(model, item, p.context.includeDeclaration).map((r): Location => ({ uri: toUri(r.file), range: lspRange(r) }));
+    const r = await itemRequest(p, token);
+    if (!r) return null;
+    return references(r.model, r.item, p.context.includeDeclaration).map((l): Location => ({ uri: toUri(l.file), range: lspRange(l) }));
   });
 
   connection.onDocumentSymbol(async (p, token) => {
