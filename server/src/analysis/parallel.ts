@@ -15,6 +15,7 @@ import { extractFile, initParsers } from "../extract/index.js";
 import { emptyFacts } from "../extract/common.js";
 import { langOf, parseText } from "../parse/parser.js";
 import type { FileFacts } from "../model/types.js";
+import { shareStrings } from "./share-strings.js";
 
 export interface LoadedFile {
   file: string;
@@ -104,6 +105,7 @@ export async function loadFiles(files: string[], opts: ParallelOptions): Promise
   let next = 0;
   let done = 0;
   const workers: Worker[] = [];
+  const pool = new Map<string, string>();
   try {
     await new Promise<void>((resolve) => {
       let live = n;
@@ -121,7 +123,10 @@ export async function loadFiles(files: string[], opts: ParallelOptions): Promise
         workers.push(w);
         w.on("message", (m: { ready?: boolean; start?: number; out?: LoadedFile[] }) => {
           if (m.out && m.start !== undefined) {
-            m.out.forEach((r, j) => (results[m.start! + j] = r));
+            m.out.forEach((r, j) => {
+              shareStrings(r, pool); // one copy of each repeated string (see share-strings.ts)
+              results[m.start! + j] = r;
+            });
             done += m.out.length;
             opts.onProgress?.(done, files.length);
           }

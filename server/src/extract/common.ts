@@ -1,6 +1,7 @@
 // Helpers shared by the extractors: ranges, comments, small constant evaluation.
 
 import type { Node } from "../parse/parser.js";
+import type Parser from "web-tree-sitter";
 import type { AbiType, FileFacts, Lang, Range } from "../model/types.js";
 
 export function rangeOf(file: string, n: Node): Range {
@@ -177,31 +178,55 @@ export function walk(root: Node, visit: (n: Node) => boolean | void, maxDepth = 
 }
 
 const SMALL_SUBTREE = 48; // characters
+// A query runs to its end in one wasm call; above this the JS walk, which checks the time budget
+// as it goes, keeps a pathological file (a 1.5 MB line) within its budget.
+const LARGE_SUBTREE = 200_000;
 const typeSets = new WeakMap<readonly string[], Set<string>>();
+
+/** One compiled query per grammar and list of types: `[(a) (b) …] @n`. */
+const typeQueries = new WeakMap<object, Map<string, Parser.Query | null>>();
+
+function queryFor(root: Node, types: readonly string[]): Parser.Query | null {
+  const lang = (root as unknown as { tree: { language: Parser.Language } }).tree.language;
+  let m = typeQueries.get(lang);
+  if (!m) typeQueries.set(lang, (m = new Map()));
+  const key = types.join(",");
+  let q = m.get(key);
+  if (q === undefined) {
+    // A type the grammar does not have would be a query error; no node can have it anyway.
+    const known = types.filter((t) => lang.idForNodeType(t, true) !== null);
+    q = known.length ? lang.query(`[${known.map((t) => `(${t})`).join(" ")}] @n`) : null;
+    m.set(key, q);
+  }
+  return q;
+}
 
 /**
  * `walk` restricted to the node types in `types`: visits, in the same (document) order, exactly the
  * nodes `walk(root, (n) => types.includes(n.type) ? visit(n) : undefined)` would, and `visit`
  * returning false leaves out that node's descendants in the same way. The nodes are found inside
- * wasm in one call (tree-sitter's descendants-of-type search), so the nodes between them never
- * become JS objects — much faster than a JS walk when the types are rare (calls, declarations,
- * function definitions). Unlike `walk` there is no depth cut-off: nodes deeper than 400 levels are
- * visited too (the visitors guard their own recursion). Checks the time budget like `walk`.
+ * wasm by a tree-sitter query (one alternation of the types, down to the same depth limit as
+ * `walk`), so the nodes between them never become JS objects — much faster than a JS walk when
+ * the types are rare (calls, declarations, function definitions). Small subtrees take the JS walk
+ * (cheaper than the query's fixed cost), and so do very large ones (see LARGE_SUBTREE). Checks the time budget like `walk`.
  */
-export function walkTypes(root: Node, types: readonly string[], visit: (n: Node) => boolean | void): void {
-  if (root.endIndex - root.startIndex < SMALL_SUBTREE) {
-    // A few nodes: the JS walk is cheaper than the wasm search's fixed cost (it scans every
-    // node type of the grammar to build its symbol list).
+export function walkTypes(root: Node, types: readonly string[], visit: (n: Node) => boolean | void, maxDepth = 400): void {
+  const size = root.endIndex - root.startIndex;
+  if (size < SMALL_SUBTREE || size > LARGE_SUBTREE) {
     let set = typeSets.get(types);
     if (!set) typeSets.set(types, (set = new Set(types)));
     const s = set;
-    walk(root, (n) => (s.has(n.type) ? visit(n) : undefined));
+    walk(root, (n) => (s.has(n.type) ? visit(n) : undefined), maxDepth);
     return;
   }
-  const found = root.descendantsOfType(types as string[]);
+  const q = queryFor(root, types);
+  if (!q) return;
+  const found = q.captures(root, { maxStartDepth: maxDepth }).map((c) => c.node);
+  // document order, an ancestor before the descendants that start where it starts
+  found.sort((a, b) => a.startIndex - b.startIndex || b.endIndex - a.endIndex);
   let count = 0;
-  // Nodes are in preorder, so a node whose visit returned false covers the ones that follow it
-  // up to its end offset; nothing inside it is visited, so one offset is enough.
+  // A node whose visit returned false covers the ones that follow it up to its end offset;
+  // nothing inside it is visited, so one offset is enough.
   let skipEnd = -1;
   for (let i = 0; i < found.length; i++) {
     const n = found[i]!;
