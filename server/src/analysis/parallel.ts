@@ -122,6 +122,7 @@ export async function loadFiles(files: string[], opts: ParallelOptions): Promise
         const w = new Worker(opts.script!, { workerData: { tag: WORKER_TAG, maxFileBytes: opts.maxFileBytes, mode } });
         workers.push(w);
         w.on("message", (m: { ready?: boolean; start?: number; out?: LoadedFile[] }) => {
+          feed(w); // the next batch first, so the worker is not kept waiting while these are stored
           if (m.out && m.start !== undefined) {
             m.out.forEach((r, j) => {
               shareStrings(r, pool); // one copy of each repeated string (see share-strings.ts)
@@ -130,7 +131,6 @@ export async function loadFiles(files: string[], opts: ParallelOptions): Promise
             done += m.out.length;
             opts.onProgress?.(done, files.length);
           }
-          feed(w);
         });
         w.on("error", () => { /* "exit" follows; its unfinished files are redone below */ });
         w.on("exit", () => {
