@@ -201,6 +201,26 @@ function queryFor(root: Node, types: readonly string[]): Parser.Query | null {
   return q;
 }
 
+/** The nodes of these types under `root`, down to `maxDepth`, in document order (an ancestor
+ * before the descendants that start where it starts). */
+function capture(root: Node, types: readonly string[], maxDepth: number): Node[] {
+  const q = queryFor(root, types);
+  if (!q) return [];
+  const found = q.captures(root, { maxStartDepth: maxDepth }).map((c) => c.node);
+  found.sort((a, b) => a.startIndex - b.startIndex || b.endIndex - a.endIndex);
+  return found;
+}
+
+/** Types the whole-file walks of the C/C++ extractors ask for (c.ts, macros.ts, the buffers and
+ * ownership plugins): found once per tree. A walk asking for other types runs its own search. */
+const TOP_TYPES = [
+  "preproc_include", "preproc_def", "preproc_call", "function_definition", "declaration", "field_declaration", "type_definition",
+  "struct_specifier", "union_specifier", "enum_specifier", "call_expression", "static_assert_declaration", "class_specifier",
+  "template_declaration", "compound_statement", "enumerator", "parameter_declaration",
+];
+const TOP_TYPES_SET: Set<string> | undefined = new Set(TOP_TYPES);
+const topNodes = new WeakMap<object, Node[]>();
+
 /**
  * `walk` restricted to the node types in `types`: visits, in the same (document) order, exactly the
  * nodes `walk(root, (n) => types.includes(n.type) ? visit(n) : undefined)` would, and `visit`
@@ -219,11 +239,18 @@ export function walkTypes(root: Node, types: readonly string[], visit: (n: Node)
     walk(root, (n) => (s.has(n.type) ? visit(n) : undefined), maxDepth);
     return;
   }
-  const q = queryFor(root, types);
-  if (!q) return;
-  const found = q.captures(root, { maxStartDepth: maxDepth }).map((c) => c.node);
-  // document order, an ancestor before the descendants that start where it starts
-  found.sort((a, b) => a.startIndex - b.startIndex || b.endIndex - a.endIndex);
+  let found: Node[];
+  if (maxDepth === 400 && root.startIndex === 0 && TOP_TYPES_SET && types.every((t) => TOP_TYPES_SET!.has(t)) && root.parent === null) {
+    // A walk of the whole file for declaration-level types: several extractors do one each, so the
+    // nodes of all of them are found in one search per tree and each walk takes its types.
+    const tree = (root as unknown as { tree: object }).tree;
+    let all = topNodes.get(tree);
+    if (!all) topNodes.set(tree, (all = capture(root, TOP_TYPES, maxDepth)));
+    let set = typeSets.get(types);
+    if (!set) typeSets.set(types, (set = new Set(types)));
+    const want = set;
+    found = all.filter((n) => want.has(n.type));
+  } else found = capture(root, types, maxDepth);
   let count = 0;
   // A node whose visit returned false covers the ones that follow it up to its end offset;
   // nothing inside it is visited, so one offset is enough.
