@@ -34,6 +34,8 @@ export interface ParallelOptions {
   workers?: number;
   /** "parse" only reads and parses (the benchmark's floor); facts are then empty. */
   mode?: WorkMode;
+  /** Attribute/export macro names to blank (setting `strip_macros`). */
+  stripMacros?: readonly string[];
   onProgress?: (done: number, total: number) => void;
 }
 
@@ -47,7 +49,7 @@ function skipped(file: string, why: string): FileFacts {
 }
 
 /** Reads one file and extracts its facts; the same outcomes as Workspace.load (never throws). */
-export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract"): LoadedFile {
+export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract", stripMacros?: readonly string[]): LoadedFile {
   let text: string;
   try {
     const st = fs.statSync(file);
@@ -66,7 +68,7 @@ export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "
     } catch { /* the floor only measures parsing */ }
     return { file, hash, facts: emptyFacts(file, lang) };
   }
-  return { file, hash, facts: extractFile(file, text, { maxFileBytes }) };
+  return { file, hash, facts: extractFile(file, text, { maxFileBytes, stripMacros }) };
 }
 
 /** The running bundle (dist/cli.js) when this code runs from one; undefined under the test
@@ -96,7 +98,7 @@ export async function loadFiles(files: string[], opts: ParallelOptions): Promise
     await initParsers();
     const out: LoadedFile[] = [];
     files.forEach((f, i) => {
-      out.push(readFacts(f, opts.maxFileBytes, mode));
+      out.push(readFacts(f, opts.maxFileBytes, mode, opts.stripMacros));
       if (opts.onProgress && i % 50 === 0) opts.onProgress(i, files.length);
     });
     return out;
@@ -119,7 +121,7 @@ export async function loadFiles(files: string[], opts: ParallelOptions): Promise
         w.postMessage({ start, files: files.slice(start, next) });
       };
       for (let i = 0; i < n; i++) {
-        const w = new Worker(opts.script!, { workerData: { tag: WORKER_TAG, maxFileBytes: opts.maxFileBytes, mode } });
+        const w = new Worker(opts.script!, { workerData: { tag: WORKER_TAG, maxFileBytes: opts.maxFileBytes, mode, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined } });
         workers.push(w);
         w.on("message", (m: { ready?: boolean; start?: number; out?: LoadedFile[] }) => {
           feed(w); // the next batch first, so the worker is not kept waiting while these are stored
@@ -144,21 +146,21 @@ export async function loadFiles(files: string[], opts: ParallelOptions): Promise
   // A worker that died mid-batch leaves holes: do those files here.
   const missing = results.some((r) => !r);
   if (missing) await initParsers();
-  return results.map((r, i) => r ?? readFacts(files[i]!, opts.maxFileBytes, mode));
+  return results.map((r, i) => r ?? readFacts(files[i]!, opts.maxFileBytes, mode, opts.stripMacros));
 }
 
 /** In a worker started by loadFiles: serves batches and returns true. Elsewhere returns false. */
 export function runWorkerIfAsked(): boolean {
   if (isMainThread || !parentPort || (workerData as { tag?: string } | null)?.tag !== WORKER_TAG) return false;
   const port = parentPort;
-  const { maxFileBytes, mode } = workerData as { maxFileBytes: number; mode: WorkMode };
+  const { maxFileBytes, mode, stripMacros } = workerData as { maxFileBytes: number; mode: WorkMode; stripMacros?: string[] };
   void initParsers().then(() => {
     port.on("message", (m: { stop?: boolean; start: number; files: string[] }) => {
       if (m.stop) {
         port.close();
         return;
       }
-      port.postMessage({ start: m.start, out: m.files.map((f) => readFacts(f, maxFileBytes, mode)) });
+      port.postMessage({ start: m.start, out: m.files.map((f) => readFacts(f, maxFileBytes, mode, stripMacros)) });
     });
     port.postMessage({ ready: true });
   });

@@ -152,7 +152,7 @@ export class Workspace {
   async loadAllAsync(paths: string[], onProgress?: (n: number, total: number) => void, opts: { script?: string; workers?: number } = {}): Promise<void> {
     const walk = listSources(paths, this.config.exclude, undefined, [...paths, ...this.config.includePaths]);
     this.walkNotices.push(...walk.notices);
-    const loaded = await loadFiles(walk.files, { maxFileBytes: this.config.maxFileBytes, script: opts.script, workers: opts.workers, onProgress });
+    const loaded = await loadFiles(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress });
     for (const r of loaded) this.entries.set(r.file, { hash: r.hash, facts: r.facts });
     this.invalidate();
   }
