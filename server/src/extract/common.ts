@@ -221,6 +221,12 @@ const TOP_TYPES = [
 const TOP_TYPES_SET: Set<string> | undefined = new Set(TOP_TYPES);
 const topNodes = new WeakMap<object, Node[]>();
 
+/** Drops what walkTypes keeps for a tree (call when its extraction is done: a tree the language
+ * server keeps for incremental re-parsing must not keep these nodes alive too). */
+export function forgetWalks(tree: object): void {
+  topNodes.delete(tree);
+}
+
 /**
  * `walk` restricted to the node types in `types`: visits, in the same (document) order, exactly the
  * nodes `walk(root, (n) => types.includes(n.type) ? visit(n) : undefined)` would, and `visit`

@@ -3,7 +3,7 @@
 
 import { getLanguage, grammarQuery, initParsers, isHeader, langOf, parseText, ParseTimeout, type Tree } from "../parse/parser.js";
 import type { FileFacts, Lang } from "../model/types.js";
-import { emptyFacts, ExtractTimeout, extractDeadlinePassed, setExtractDeadline } from "./common.js";
+import { emptyFacts, ExtractTimeout, extractDeadlinePassed, forgetWalks, setExtractDeadline } from "./common.js";
 import { extractC } from "./c.js";
 import { extractRust } from "./rust.js";
 import { blankAttributeMacros } from "./macros.js";
@@ -158,6 +158,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     return f;
   } finally {
     setExtractDeadline(Infinity);
+    if (tree) forgetWalks(tree);
     if (tree && opts.keepTree) opts.keepTree(tree);
     else tree?.delete();
   }
