@@ -1,5 +1,5 @@
 // `ferrule layout [--target TRIPLE]... --format json|text PATH...`: the JSON shape promised in
-// docs/sections/layout.md, checked with a JSON Schema (ajv), and the text table with padding.
+// the README ("ferrule layout"), checked with a JSON Schema (ajv), and the text table with padding.
 import { describe, expect, test } from "vitest";
 import * as path from "node:path";
 import Ajv from "ajv";

@@ -27,7 +27,7 @@ export async function activate(context: vscode.ExtensionContext): Promise<void> 
   const serverOptions: ServerOptions = {
     // Same heap flags as `npx ferrule lsp` (bin/ferrule.js): a capped young generation keeps the
     // long-lived server from growing its heap under a stream of edits.
-    run: { module: serverModule, transport: TransportKind.stdio, args: ["lsp"], options: { execArgv: ["--max-semi-space-size=1"] } },
+    run: { module: serverModule, transport: TransportKind.stdio, args: ["lsp"], options: { execArgv: ["--max-semi-space-size=1", "--expose-gc"] } },
     debug: { module: serverModule, transport: TransportKind.stdio, args: ["lsp"] },
   };
   const clientOptions: LanguageClientOptions = {

@@ -148,7 +148,7 @@ describe("the demo workspace", () => {
 });
 
 describe("documentation", () => {
-  it("the documented [ports] example (docs/sections/buffers.md) reports what the docs say", async () => {
+  it("the documented [ports] example (README, Block ports) reports what the docs say", async () => {
     const cfg = parseConfigText(`[ports]
   decl = [
     { call = "add_channel", item_size_args = [1], direction = "in" },

@@ -24,12 +24,9 @@ import { cHeaderFor } from "../fixes/cgen.js";
 import { Engine, relPath, type AnalysisResult } from "./engine.js";
 import { resolveConfig, type EditorSettings } from "./config.js";
 import { definitions, documentSymbols, hoverMarkdown, itemAt, layoutDocument, references } from "./features.js";
-import * as v8 from "node:v8";
-import * as vm from "node:vm";
 
 export const GENERATE_HEADER_KIND = "source.generateCDeclarations.ferrule";
 const DEBOUNCE_MS = 12;
-let gcFn: (() => void) | undefined;
 const IDLE_FULL_CHECK_MS = 2000;
 
 const toUri = (file: string) => pathToFileURL(file).href;
@@ -162,15 +159,8 @@ export function startServer(conn?: Connection): void {
    * when idle gives the memory back; it costs a few milliseconds on a heap that small.
    */
   function idleGc(): void {
-    try {
-      if (!gcFn) {
-        v8.setFlagsFromString("--expose-gc");
-        gcFn = vm.runInNewContext("gc") as () => void;
-      }
-      gcFn();
-    } catch {
-      /* no GC hook on this runtime: nothing to do */
-    }
+    // present when started with --expose-gc (bin/ferrule.js and the VS Code client do so)
+    (globalThis as { gc?: () => void }).gc?.();
   }
 
   function schedule(delay = DEBOUNCE_MS): void {

@@ -31,6 +31,7 @@ export class Model {
   private readonly definesBy = new Map<string, AbiType>();
   private readonly includers = new Map<string, string[]>();
   private readonly fnIds = new Map<string, FnDecl>();
+  private byBase: Map<string, string[]> | undefined;
 
   constructor(facts: Iterable<FileFacts>, config: ModelConfig = DEFAULT_CONFIG) {
     this.files = new Map();
@@ -92,16 +93,19 @@ export class Model {
     for (const p of this.config.includePaths) cands.push(path.normalize(path.join(p, inc)));
     for (const c of cands) if (this.files.has(c)) return c;
     // Fall back to a unique file of that name anywhere in the workspace (common practice: build
-    // systems add the header folders with -I).
-    const base = path.basename(inc);
-    let hit: string | undefined;
-    for (const f of this.files.keys()) {
-      if (f === inc || f.endsWith("/" + inc) || (inc === base && path.basename(f) === base)) {
-        if (hit && hit !== f) return undefined;
-        hit = f;
+    // systems add the header folders with -I). Indexed by base name, built on first use.
+    if (!this.byBase) {
+      this.byBase = new Map();
+      for (const f of this.files.keys()) {
+        const b = path.basename(f);
+        const arr = this.byBase.get(b);
+        if (arr) arr.push(f);
+        else this.byBase.set(b, [f]);
       }
     }
-    return hit;
+    const base = path.basename(inc);
+    const hits = (this.byBase.get(base) ?? []).filter((f) => f === inc || f.endsWith("/" + inc) || inc === base);
+    return hits.length === 1 ? hits[0] : undefined;
   }
 
   /** Files that include `file`, directly or through other headers. */

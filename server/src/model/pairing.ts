@@ -2,7 +2,7 @@
 // in items or in bytes, and where that knowledge came from. Sources, in order of trust:
 //   1. explicit declarations on the C side: GCC `access(mode, ptr, size)` attributes, C99 array
 //      parameters (`float out[static n]`), clang `__counted_by(n)` / `__sized_by(n)`, and the
-//      ferrule doc-comment annotation (on either side; see docs/sections/buffers.md):
+//      ferrule doc-comment annotation (on either side; see the README, "Buffer contracts"):
 //          ferrule-buffers: out[n], iq[2*n], raw[nbytes bytes], ctx nullable, alias(in, out)
 //   2. Rust body evidence: `slice::from_raw_parts(p, len)` in the exported function's body;
 //   3. naming conventions: `n`, `len`, `count`, `num_*`, `n_*`, `*_len`, `*_count`, `n<word>`
