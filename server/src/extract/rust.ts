@@ -254,7 +254,7 @@ export function extractRust(file: string, tree: Tree): FileFacts {
     return;
   });
 
-  const visitItems = (container: Node, inImpl: boolean) => {
+  const visitItems = (container: Node) => {
     const kids = container.namedChildren;
     for (let i = 0; i < kids.length; i++) {
       const n = kids[i]!;
@@ -262,16 +262,16 @@ export function extractRust(file: string, tree: Tree): FileFacts {
         case "mod_item": {
           const a = attrsBefore(n);
           const body = n.childForFieldName("body");
-          if (body && !a.cfgTest) visitItems(body, false);
+          if (body && !a.cfgTest) visitItems(body);
           break;
         }
         case "impl_item": {
           const body = n.childForFieldName("body");
-          if (body) visitItems(body, true);
+          if (body) visitItems(body);
           break;
         }
         case "function_item":
-          readFn(n, inImpl);
+          readFn(n);
           break;
         case "foreign_mod_item": {
           const abi = abiOf(n) ?? "C";
@@ -290,7 +290,7 @@ export function extractRust(file: string, tree: Tree): FileFacts {
             readForeign(block, s ? s.text.replace(/"/g, "") : "C");
             i++;
           } else {
-            visitItems(n, inImpl);
+            visitItems(n);
           }
           break;
         }
@@ -318,24 +318,17 @@ export function extractRust(file: string, tree: Tree): FileFacts {
     }
   };
 
-  const readFn = (n: Node, inImpl: boolean) => {
-    const a = attrsBefore(n);
-    if (a.cfgTest) return;
-    const nameNode = n.childForFieldName("name");
-    if (!nameNode) return;
-    const mods = n.namedChildren.find((c) => c.type === "function_modifiers");
-    const abi = abiOf(mods);
-    const exported = a.noMangle || !!a.exportName;
-    const body = n.childForFieldName("body");
+  /** The signature part of a function item or an extern-block item. */
+  const signature = (n: Node, nameNode: Node, role: FnDecl["role"], symbol: string, abi: string, a: AttrInfo): FnDecl & { hasSelf: boolean } => {
     const { params, variadic, hasSelf } = readRustParams(n.childForFieldName("parameters"), ctx);
     const retNode = n.childForFieldName("return_type");
-    const fn: FnDecl = {
+    return {
       id: `${file}#${nameNode.text}#${n.startPosition.row}`,
       lang: "rust",
-      role: "export",
+      role,
       name: nameNode.text,
-      symbol: a.exportName ?? nameNode.text,
-      abi: abi ?? "Rust",
+      symbol,
+      abi,
       params,
       ret: rustType(retNode, ctx),
       retText: retNode?.text ?? "()",
@@ -344,14 +337,26 @@ export function extractRust(file: string, tree: Tree): FileFacts {
       range: rangeOf(file, n),
       nameRange: rangeOf(file, nameNode),
       file,
-      noMangle: exported,
-      isExtern: abi !== undefined,
-      isPub: n.namedChildren.some((c) => c.type === "visibility_modifier"),
       doc: docAbove(n),
       attrs: a.texts,
-      generic: !!n.childForFieldName("type_parameters") || hasSelf || (inImpl && false),
+      hasSelf,
     };
-    if (body) {
+  };
+
+  const readFn = (n: Node) => {
+    const a = attrsBefore(n);
+    if (a.cfgTest) return;
+    const nameNode = n.childForFieldName("name");
+    if (!nameNode) return;
+    const mods = n.namedChildren.find((c) => c.type === "function_modifiers");
+    const abi = abiOf(mods);
+    const exported = a.noMangle || !!a.exportName;
+    const { hasSelf, ...fn } = signature(n, nameNode, "export", a.exportName ?? nameNode.text, abi ?? "Rust", a) as FnDecl & { hasSelf: boolean };
+    fn.noMangle = exported;
+    fn.isExtern = abi !== undefined;
+    fn.isPub = n.namedChildren.some((c) => c.type === "visibility_modifier");
+    fn.generic = !!n.childForFieldName("type_parameters") || hasSelf;
+    if (n.childForFieldName("body")) {
       fn.body = {};
       for (const x of rustExtractors.fnBody) x(n, fn, facts);
     }
@@ -367,27 +372,9 @@ export function extractRust(file: string, tree: Tree): FileFacts {
       const a = attrsBefore(item);
       const nameNode = item.childForFieldName("name");
       if (!nameNode) continue;
-      const { params, variadic } = readRustParams(item.childForFieldName("parameters"), ctx);
-      const retNode = item.childForFieldName("return_type");
-      facts.fns.push({
-        id: `${file}#${nameNode.text}#${item.startPosition.row}`,
-        lang: "rust",
-        role: "import",
-        name: nameNode.text,
-        symbol: a.linkName ?? nameNode.text,
-        abi,
-        params,
-        ret: rustType(retNode, ctx),
-        retText: retNode?.text ?? "()",
-        retRange: retNode ? rangeOf(file, retNode) : undefined,
-        variadic,
-        range: rangeOf(file, item),
-        nameRange: rangeOf(file, nameNode),
-        file,
-        isExtern: true,
-        doc: docAbove(item),
-        attrs: a.texts,
-      });
+      const { hasSelf: _self, ...fn } = signature(item, nameNode, "import", a.linkName ?? nameNode.text, abi, a);
+      fn.isExtern = true;
+      facts.fns.push(fn);
     }
   };
 
@@ -519,7 +506,7 @@ export function extractRust(file: string, tree: Tree): FileFacts {
     return undefined;
   };
 
-  visitItems(root, false);
+  visitItems(root);
   for (const x of rustExtractors.file) x(root, facts);
   return facts;
 }
