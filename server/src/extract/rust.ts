@@ -4,7 +4,7 @@
 
 import type { Node, Tree } from "../parse/parser.js";
 import { parseText } from "../parse/parser.js";
-import type { AbiType, Field, FileFacts, FnDecl, Param, SourceAssert, TypeDecl } from "../model/types.js";
+import type { AbiType, BodyCache, Field, FileFacts, FnDecl, Param, SourceAssert, TypeDecl } from "../model/types.js";
 import type { ScalarKind } from "../model/targets.js";
 import { docAbove, emptyFacts, evalConst, rangeOf, walk } from "./common.js";
 import { rustExtractors } from "./hooks.js";
@@ -236,7 +236,24 @@ function readRustParams(list: Node | null, ctx: RustCtx): { params: Param[]; var
   return { params, variadic, hasSelf };
 }
 
-export function extractRust(file: string, tree: Tree): FileFacts {
+/** Adds `delta` to the line numbers of every range inside a (cloned) body-facts object. A range
+ * object may be shared by two facts (structuredClone keeps the sharing): shift each once. */
+function shiftLines(v: unknown, delta: number, seen = new Set<object>(), depth = 0): void {
+  if (!v || typeof v !== "object" || depth > 40 || seen.has(v)) return;
+  seen.add(v);
+  if (Array.isArray(v)) {
+    for (const x of v) shiftLines(x, delta, seen, depth + 1);
+    return;
+  }
+  const o = v as Record<string, unknown>;
+  if (typeof o.line === "number" && typeof o.endLine === "number" && typeof o.file === "string") {
+    o.line += delta;
+    o.endLine = (o.endLine as number) + delta;
+  }
+  for (const k in o) if (typeof o[k] === "object") shiftLines(o[k], delta, seen, depth + 1);
+}
+
+export function extractRust(file: string, tree: Tree, bodyCache?: BodyCache): FileFacts {
   const facts = emptyFacts(file, "rust");
   const root = tree.rootNode;
   facts.hasErrors = root.hasError;
@@ -357,8 +374,19 @@ export function extractRust(file: string, tree: Tree): FileFacts {
     fn.isPub = n.namedChildren.some((c) => c.type === "visibility_modifier");
     fn.generic = !!n.childForFieldName("type_parameters") || hasSelf;
     if (n.childForFieldName("body")) {
-      fn.body = {};
-      for (const x of rustExtractors.fnBody) x(n, fn, facts);
+      // Body facts depend only on the function's text and its start: reuse them when unchanged.
+      const key = bodyCache ? `${n.startPosition.column}:${fn.params.length}:${n.text}` : "";
+      const hit = bodyCache?.prev.get(key) ?? bodyCache?.next.get(key);
+      if (hit) {
+        fn.body = structuredClone(hit.body);
+        shiftLines(fn.body, n.startPosition.row - hit.row);
+      } else {
+        const before = facts.notices.length;
+        fn.body = {};
+        for (const x of rustExtractors.fnBody) x(n, fn, facts);
+        if (bodyCache && facts.notices.length === before) bodyCache.next.set(key, { row: n.startPosition.row, body: structuredClone(fn.body) });
+      }
+      if (hit && bodyCache) bodyCache.next.set(key, hit);
     }
     // Only functions that take part in the C ABI are boundary items; others are kept (not
     // exported) so body rules can follow helper calls inside the crate.

@@ -18,7 +18,7 @@ import type { FerruleConfig } from "../analysis/config.js";
 import type { Finding } from "../rules/api.js";
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
-import type { AbiType, FileFacts } from "../model/types.js";
+import type { AbiType, BodyCache, FileFacts } from "../model/types.js";
 import { langOf, type Tree } from "../parse/parser.js";
 
 export interface Pos {
@@ -38,6 +38,8 @@ export interface OpenDoc {
   /** Start offset of each line (UTF-16 code units), kept in step with `text`. */
   lineStarts: number[];
   tree?: Tree;
+  /** Function-body facts of the last extraction, reused for unchanged functions. */
+  bodies?: BodyCache["prev"];
 }
 
 function computeLineStarts(text: string): number[] {
@@ -267,7 +269,9 @@ export class Engine {
       const d = this.docs.get(file);
       if (d) {
         let fresh: Tree | undefined;
-        const did = this.ws.update(file, d.text, { oldTree: d.tree, keepTree: (t) => { fresh = t; } });
+        const bodyCache: BodyCache = { prev: d.bodies ?? new Map(), next: new Map() };
+        const did = this.ws.update(file, d.text, { oldTree: d.tree, keepTree: (t) => { fresh = t; }, bodyCache });
+        if (did) d.bodies = bodyCache.next;
         if (fresh) {
           if (d.tree && d.tree !== fresh) d.tree.delete();
           d.tree = fresh;

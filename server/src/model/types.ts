@@ -223,3 +223,14 @@ export interface Suppression {
   reason: string;
   range: Range;
 }
+
+/**
+ * Reuse of function-body facts between two extractions of one file (the language server passes
+ * it for open documents). Body facts depend only on the function's own text and where it starts,
+ * so an unchanged function's facts are reused with their lines shifted. Extraction reads `prev`
+ * and fills `next`; the caller keeps `next` as the following `prev`.
+ */
+export interface BodyCache {
+  prev: Map<string, { row: number; body: BodyFacts }>;
+  next: Map<string, { row: number; body: BodyFacts }>;
+}
