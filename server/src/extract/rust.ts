@@ -377,16 +377,22 @@ export function extractRust(file: string, tree: Tree, bodyCache?: BodyCache): Fi
       // Body facts depend only on the function's text and its start: reuse them when unchanged.
       const key = bodyCache ? `${n.startPosition.column}:${fn.params.length}:${n.text}` : "";
       const hit = bodyCache?.prev.get(key) ?? bodyCache?.next.get(key);
+      const row = n.startPosition.row;
       if (hit) {
-        fn.body = structuredClone(hit.body);
-        shiftLines(fn.body, n.startPosition.row - hit.row);
+        // Body facts are never mutated once extracted, so an unmoved function shares them; a moved
+        // one gets a shifted copy, which becomes the cached entry for the next edit.
+        if (hit.row === row) fn.body = hit.body;
+        else {
+          fn.body = structuredClone(hit.body);
+          shiftLines(fn.body, row - hit.row);
+        }
+        bodyCache!.next.set(key, { row, body: fn.body });
       } else {
         const before = facts.notices.length;
         fn.body = {};
         for (const x of rustExtractors.fnBody) x(n, fn, facts);
-        if (bodyCache && facts.notices.length === before) bodyCache.next.set(key, { row: n.startPosition.row, body: structuredClone(fn.body) });
+        if (bodyCache && facts.notices.length === before) bodyCache.next.set(key, { row, body: fn.body });
       }
-      if (hit && bodyCache) bodyCache.next.set(key, hit);
     }
     // Only functions that take part in the C ABI are boundary items; others are kept (not
     // exported) so body rules can follow helper calls inside the crate.
