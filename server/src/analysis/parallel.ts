@@ -11,7 +11,7 @@ import * as fs from "node:fs";
 import * as os from "node:os";
 import { createHash } from "node:crypto";
 import { Worker, isMainThread, parentPort, workerData } from "node:worker_threads";
-import { extractFile, initParsers } from "../extract/index.js";
+import { extractFile, initParsers, skippedFacts } from "../extract/index.js";
 import { emptyFacts } from "../extract/common.js";
 import { langOf, parseText } from "../parse/parser.js";
 import type { FileFacts } from "../model/types.js";
@@ -42,23 +42,17 @@ export interface ParallelOptions {
 const WORKER_TAG = "ferrule-extract-worker";
 const BATCH = 8;
 
-function skipped(file: string, why: string): FileFacts {
-  const f = emptyFacts(file, langOf(file) ?? "c");
-  f.notices.push({ rule: "file-skipped", severity: "info", message: `skipped: ${file}: ${why}`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 } });
-  return f;
-}
-
 /** Reads one file and extracts its facts; the same outcomes as Workspace.load (never throws). */
 export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract", stripMacros?: readonly string[]): LoadedFile {
   let text: string;
   try {
     const st = fs.statSync(file);
     if (st.size > maxFileBytes * 4) {
-      return { file, hash: "", facts: skipped(file, `${st.size} bytes, above the limit of ${maxFileBytes} (setting max_file_bytes)`) };
+      return { file, hash: "", facts: skippedFacts(file, `${st.size} bytes, above the limit of ${maxFileBytes} (setting max_file_bytes)`) };
     }
     text = fs.readFileSync(file, "utf8");
   } catch (e) {
-    return { file, hash: "", facts: skipped(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`) };
+    return { file, hash: "", facts: skippedFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`) };
   }
   const hash = createHash("sha1").update(text).digest("hex");
   if (mode === "parse") {

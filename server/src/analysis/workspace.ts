@@ -5,7 +5,7 @@
 import * as fs from "node:fs";
 import * as path from "node:path";
 import { createHash } from "node:crypto";
-import { extractFile, initParsers, type ExtractOptions } from "../extract/index.js";
+import { extractFile, initParsers, type ExtractOptions, skippedFacts } from "../extract/index.js";
 import { langOf } from "../parse/parser.js";
 import { Model } from "../model/boundary.js";
 import type { FileFacts } from "../model/types.js";
@@ -131,12 +131,12 @@ export class Workspace {
     try {
       const st = fs.statSync(file);
       if (st.size > this.config.maxFileBytes * 4) {
-        this.setFacts(file, skipFacts(file, `${st.size} bytes, above the limit of ${this.config.maxFileBytes} (setting max_file_bytes)`));
+        this.setFacts(file, skippedFacts(file, `${st.size} bytes, above the limit of ${this.config.maxFileBytes} (setting max_file_bytes)`));
         return;
       }
       text = fs.readFileSync(file, "utf8");
     } catch (e) {
-      this.setFacts(file, skipFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`));
+      this.setFacts(file, skippedFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`));
       return;
     }
     this.update(file, text);
@@ -211,12 +211,6 @@ export class Workspace {
     out.sort((a, b) => a.range.file.localeCompare(b.range.file) || a.range.line - b.range.line || a.range.col - b.range.col || a.rule.localeCompare(b.rule));
     return out;
   }
-}
-
-function skipFacts(file: string, why: string): FileFacts {
-  const f = extractFile(file, "");
-  f.notices.push({ rule: "file-skipped", severity: "info", message: `skipped: ${file}: ${why}`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 } });
-  return f;
 }
 
 function dedupe(fs_: Finding[]): Finding[] {

@@ -88,18 +88,18 @@ function partlyRead(file: string, budget: number): FileFacts["notices"][number] 
   };
 }
 
+/** Facts of a file ferrule did not read: empty, with the one `file-skipped` notice saying why. */
+export function skippedFacts(file: string, why: string): FileFacts {
+  const f = emptyFacts(file, langOf(file) ?? "c");
+  f.notices.push({ rule: "file-skipped", severity: "info", message: `skipped: ${file}: ${why}`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 } });
+  return f;
+}
+
 export function extractFile(file: string, text: string, opts: ExtractOptions = {}): FileFacts {
   const lang = langOf(file) ?? "c";
   const max = opts.maxFileBytes ?? DEFAULT_MAX_FILE_BYTES;
   if (text.length > max) {
-    const f = emptyFacts(file, lang);
-    f.notices.push({
-      rule: "file-skipped",
-      severity: "info",
-      message: `skipped: ${file} is ${text.length} characters, above the limit of ${max} (setting maxFileBytes)`,
-      range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
-    });
-    return f;
+    return skippedFacts(file, `${text.length} characters, above the limit of ${max} (setting max_file_bytes)`);
   }
   if (text.charCodeAt(0) === 0xfeff) text = " " + text.slice(1); // BOM: keep columns stable
   let tree: Tree | undefined;
@@ -148,8 +148,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     }
     if (e instanceof RangeError && /call stack/i.test(e.message)) {
       // pathological nesting (thousands of levels of pointers, generics or brackets)
-      f.notices.push({ rule: "file-skipped", severity: "info", message: `skipped: ${file}: nested too deeply to read`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 } });
-      return f;
+      return skippedFacts(file, "nested too deeply to read");
     }
     f.notices.push({
       rule: "internal-error",
