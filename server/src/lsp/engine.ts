@@ -373,7 +373,7 @@ export class Engine {
       if (!facts) continue;
       for (const inc of facts.includes) {
         if (inc.system) continue;
-        const r = inc.resolved ?? model?.resolveInclude(file, inc.path);
+        const r = model?.includeTarget(inc) ?? model?.resolveInclude(file, inc.path);
         if (r && !context.has(r) && this.ws.has(r)) {
           context.add(r);
           stack.push(r);

@@ -2,7 +2,7 @@
 // only (no file reads), so it is cheap to rebuild after a one-file change.
 
 import * as path from "node:path";
-import type { AbiType, FileFacts, FnDecl, TypeDecl } from "./types.js";
+import type { AbiType, FileFacts, FnDecl, IncludeRef, TypeDecl } from "./types.js";
 import { ALL_TRIPLES, type Triple } from "./targets.js";
 
 export type Side = "rust" | "c";
@@ -32,6 +32,8 @@ export class Model {
   private readonly includers = new Map<string, string[]>();
   private readonly fnIds = new Map<string, FnDecl>();
   private byBase: Map<string, string[]> | undefined;
+  /** Where each `#include "…"` of the workspace resolved (the facts themselves stay untouched). */
+  private readonly includeTargets = new Map<IncludeRef, string>();
 
   constructor(facts: Iterable<FileFacts>, config: ModelConfig = DEFAULT_CONFIG) {
     this.files = new Map();
@@ -63,13 +65,18 @@ export class Model {
         if (inc.system) continue;
         const r = this.resolveInclude(f.file, inc.path);
         if (r) {
-          inc.resolved = r;
+          this.includeTargets.set(inc, r);
           const arr = this.includers.get(r) ?? [];
           arr.push(f.file);
           this.includers.set(r, arr);
         }
       }
     }
+  }
+
+  /** The workspace file an include of this model's facts resolved to. */
+  includeTarget(inc: IncludeRef): string | undefined {
+    return this.includeTargets.get(inc);
   }
 
   fnById(id: unknown): FnDecl | undefined {

@@ -146,7 +146,6 @@ export interface SourceAssert {
 export interface IncludeRef {
   path: string; // as written
   system: boolean;
-  resolved?: string; // workspace-relative file, when found
   range: Range;
 }
 

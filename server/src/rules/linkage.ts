@@ -33,7 +33,7 @@ export const linkageFamily: RuleFamily = {
           if (cxx.length === 0 && facts.lang !== "cpp") continue;
           const inc = cxx[0];
           const rel = inc ? [{ range: { file: inc, line: 0, col: 0, endLine: 0, endCol: 0 }, message: "included by this C++ file" }] : [];
-          const incRef = inc ? model.files.get(inc)?.includes.find((i) => i.resolved === p.file) : undefined;
+          const incRef = inc ? model.files.get(inc)?.includes.find((i) => model.includeTarget(i) === p.file) : undefined;
           if (incRef) rel[0]!.range = incRef.range;
           out.push(finding(CXX_LINKAGE, p.nameRange, `\`${p.name}\` has no extern "C" linkage in this header${inc ? `, which ${inc.split("/").pop()} includes` : ""}: wrap the declarations in \`#ifdef __cplusplus extern "C" { #endif\``, rel, { data: { fn: p.id, header: p.file } }));
         }
