@@ -9,7 +9,8 @@
 //     first publishDiagnostics; and the cold start (spawn → workspace indexed and checked).
 // The server's own analysis time per edit (ferrule/stats) is reported beside the protocol time.
 //
-// usage: node scripts/bench/lsp.mjs [--lines 200000] [--edits 60] [--out DIR]
+// usage: node scripts/bench/lsp.mjs [--lines 200000] [--edits 60] [--out DIR] [--reuse yes]
+// (--reuse yes: measure the workspace a previous run generated in DIR instead of generating it again)
 // Exported: measureLsp({ workspace, file, edits }) for a workspace you already have.
 // Run by scripts/bench.mjs (prints one JSON line on stdout).
 
@@ -118,6 +119,7 @@ export async function measureLsp({ workspace, file, edits = 60, pauseMs = 120 })
     const col = lines[line].indexOf(": usize") + 2;
     const lat = [];
     const server = [];
+    const publishMs = [];
     let version = 1;
     let correct = true;
     const diagAt = (p) => p.diagnostics.some((d) => d.range.start.line === line && d.code === "param-type-mismatch");
@@ -134,7 +136,7 @@ export async function measureLsp({ workspace, file, edits = 60, pauseMs = 120 })
       lat.push(at - ts);
       if (diagAt(published.get(u)) !== introduce) correct = false;
       const s = await conn.sendRequest("ferrule/stats");
-      if (s.lastAnalysis) server.push(s.lastAnalysis.ms);
+      if (s.lastAnalysis) { server.push(s.lastAnalysis.ms); publishMs.push(s.lastAnalysis.publishMs ?? 0); }
       await new Promise((r) => setTimeout(r, pauseMs));
     }
     const stats = await conn.sendRequest("ferrule/stats");
@@ -142,7 +144,7 @@ export async function measureLsp({ workspace, file, edits = 60, pauseMs = 120 })
       coldStartMs: Math.round(coldMs), files: stats0.files, findings: stats0.findings,
       firstDiagnosticsMs: +firstMs.toFixed(1),
       editToDiagnostics: { n: lat.length, medianMs: quantile(lat, 0.5), p95Ms: quantile(lat, 0.95), maxMs: quantile(lat, 1) },
-      serverAnalysis: { medianMs: quantile(server, 0.5), p95Ms: quantile(server, 0.95), last: stats.lastAnalysis },
+      serverAnalysis: { medianMs: quantile(server, 0.5), p95Ms: quantile(server, 0.95), publishMedianMs: quantile(publishMs, 0.5), last: stats.lastAnalysis },
       mismatchAppearsAndClears: correct,
     };
   } finally {
@@ -160,8 +162,13 @@ async function main() {
   const out = path.resolve(get("--out", path.join(ROOT, "bench-out", "lsp-ws")));
   if (!fs.existsSync(path.join(ROOT, "dist/cli.js"))) throw new Error("run `node scripts/build.mjs` first");
   const { generate } = await import("../gen-bench.mjs");
-  generate({ lines, out, seed: 11 });
-  const big = makeBigFile(out);
+  let big = path.join(out, "crates");
+  const existing = fs.existsSync(big) && fs.readdirSync(big).map((c) => path.join(big, c, "src", "big_kernels.rs")).find((f) => fs.existsSync(f));
+  if (existing && get("--reuse", "") === "yes") big = existing;
+  else {
+    generate({ lines, out, seed: 11 });
+    big = makeBigFile(out);
+  }
   const r = await measureLsp({ workspace: out, file: big, edits });
   const result = {
     name: "lsp", workspaceLines: lineCount(out), bigFileLines: fs.readFileSync(big, "utf8").split("\n").length, ...r,

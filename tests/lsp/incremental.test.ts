@@ -33,6 +33,12 @@ const EDITS: [string, string, string][] = [
   [RS, "use core::slice;", "use core::slice;\n\n// two\n// more lines\n"],
   [RS, "\n    if h.is_null() {\n        return -1;", "\n    if h.is_null() {\n        return -2;"],
   [RS, "use core::slice;\n\n// two\n// more lines\n", "use core::slice;"],
+  // an unchanged item whose facts depend on a const elsewhere in the file must be read again
+  [RS, "use core::slice;", "use core::slice;\npub const SONAR_PROBE_TAPS: usize = 4;\n#[repr(C)]\npub struct SonarProbe {\n    pub taps: [f32; SONAR_PROBE_TAPS],\n}"],
+  [RS, "SONAR_PROBE_TAPS: usize = 4;", "SONAR_PROBE_TAPS: usize = 8;"],
+  // an edit inside one function after its neighbours moved
+  [RS, "#[repr(C)]\npub struct SonarProbe {", "\n#[repr(C)]\npub struct SonarProbe {"],
+  [RS, "        return -2;", "        return -3;"],
 ];
 
 describe("incremental re-analysis equals a fresh analysis", () => {

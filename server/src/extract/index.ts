@@ -2,7 +2,7 @@
 // cache the result by content hash. Never throws: trouble becomes a notice on the file.
 
 import { getLanguage, grammarQuery, initParsers, isHeader, langOf, parseText, ParseTimeout, type Tree } from "../parse/parser.js";
-import type { BodyCache, FileFacts, Lang } from "../model/types.js";
+import type { FileFacts, ItemCache, Lang } from "../model/types.js";
 import { emptyFacts, ExtractTimeout, extractDeadlinePassed, forgetWalks, setExtractDeadline } from "./common.js";
 import { extractC } from "./c.js";
 import { extractRust } from "./rust.js";
@@ -65,8 +65,8 @@ export interface ExtractOptions {
   oldTree?: Tree;
   /** When given, the final tree is handed to the caller (who must delete it) instead of being deleted. */
   keepTree?: (tree: Tree) => void;
-  /** Function-body facts of the previous extraction of this file, for reuse (Rust files). */
-  bodyCache?: BodyCache;
+  /** Item facts of the previous extraction of this file, for reuse (Rust files). */
+  itemCache?: ItemCache;
 }
 
 function reusable(old: Tree | undefined, lang: Lang): Tree | undefined {
@@ -112,7 +112,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
   try {
     if (lang === "rust") {
       tree = parseText("rust", text, reusable(opts.oldTree, "rust"), budget);
-      const rf = extractRust(file, tree, opts.bodyCache);
+      const rf = extractRust(file, tree, opts.itemCache, text);
       if (text.includes("ferrule-allow")) collectSuppressions(tree, rf);
       return timed(rf);
     }

@@ -4,7 +4,7 @@
 
 import type { Node, Tree } from "../parse/parser.js";
 import { parseText } from "../parse/parser.js";
-import type { AbiType, BodyCache, Field, FileFacts, FnDecl, Param, SourceAssert, TypeDecl } from "../model/types.js";
+import type { AbiType, CachedItem, Field, ItemCache, FileFacts, FnDecl, Param, SourceAssert, TypeDecl } from "../model/types.js";
 import type { ScalarKind } from "../model/targets.js";
 import { docAbove, emptyFacts, evalConst, rangeOf, walk } from "./common.js";
 import { rustExtractors } from "./hooks.js";
@@ -253,28 +253,94 @@ function shiftLines(v: unknown, delta: number, seen = new Set<object>(), depth =
   for (const k in o) if (typeof o[k] === "object") shiftLines(o[k], delta, seen, depth + 1);
 }
 
-export function extractRust(file: string, tree: Tree, bodyCache?: BodyCache): FileFacts {
+/** Item kinds whose facts depend only on their own text (see ItemCache). */
+const CACHED_ITEMS = new Set(["function_item", "struct_item", "union_item", "enum_item", "type_item", "const_item", "foreign_mod_item"]);
+const LEAD = new Set(["attribute_item", "line_comment", "block_comment"]);
+
+/** A copy of a cached item's facts moved by `delta` lines (ranges and the row in each id). */
+function movedItem(item: CachedItem, row: number): CachedItem {
+  const delta = row - item.row;
+  const c = structuredClone(item);
+  c.row = row;
+  shiftLines(c, delta);
+  const reId = (d: { id: string }) => {
+    const i = d.id.lastIndexOf("#");
+    d.id = d.id.slice(0, i + 1) + String(Number(d.id.slice(i + 1)) + delta);
+  };
+  c.fns.forEach(reId);
+  c.types.forEach(reId);
+  return c;
+}
+
+/**
+ * Rust file facts. With an item cache (the language server, for open documents) and the file's
+ * text, items whose text did not change since the previous extraction reuse its facts.
+ */
+export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, text?: string): FileFacts {
   const facts = emptyFacts(file, "rust");
   const root = tree.rootNode;
   facts.hasErrors = root.hasError;
   const ctx: RustCtx = { file, consts: new Map() };
 
-  // Pass 1: integer consts (array lengths), anywhere at item level.
-  walk(root, (n) => {
-    if (n.type === "const_item" || n.type === "static_item") {
-      const name = n.childForFieldName("name")?.text;
-      const v = evalConst(n.childForFieldName("value"), ctx.consts);
-      if (name && name !== "_" && v !== null) ctx.consts.set(name, v);
-      return false;
+  // Pass 1: integer consts (array lengths), anywhere at item level (modules, impl and trait
+  // blocks; not inside functions or other consts' values).
+  const readConsts = (container: Node, depth: number) => {
+    for (const n of container.namedChildren) {
+      switch (n.type) {
+        case "const_item":
+        case "static_item": {
+          const name = n.childForFieldName("name")?.text;
+          const v = evalConst(n.childForFieldName("value"), ctx.consts);
+          if (name && name !== "_" && v !== null) ctx.consts.set(name, v);
+          break;
+        }
+        case "mod_item":
+        case "impl_item":
+        case "trait_item": {
+          const body = n.childForFieldName("body");
+          if (body && depth < 64) readConsts(body, depth + 1);
+          break;
+        }
+        case "declaration_list":
+        case "ERROR":
+          if (depth < 64) readConsts(n, depth + 1);
+          break;
+      }
     }
-    if (n.type === "function_item") return false;
-    return;
-  });
+  };
+  readConsts(root, 0);
+
+  const cache = text === undefined ? undefined : itemCache;
+  if (cache) {
+    const consts = [...ctx.consts].join(";");
+    if (cache.consts !== consts) cache.prev.clear();
+    cache.consts = consts;
+  }
 
   const visitItems = (container: Node) => {
     const kids = container.namedChildren;
     for (let i = 0; i < kids.length; i++) {
       const n = kids[i]!;
+      let key: string | undefined;
+      let mark: [number, number, number, number] | undefined;
+      if (cache && CACHED_ITEMS.has(n.type)) {
+        // The item's text with the attributes and comments right before it.
+        let j = i - 1;
+        while (j >= 0 && LEAD.has(kids[j]!.type)) j--;
+        const from = j >= 0 ? kids[j]!.endIndex : container.startIndex;
+        key = `${n.startPosition.column}:${text!.slice(from, n.endIndex)}`;
+        const hit = cache.prev.get(key) ?? cache.next.get(key);
+        if (hit) {
+          const row = n.startPosition.row;
+          const item = hit.row === row ? hit : movedItem(hit, row);
+          for (const f of item.fns) facts.fns.push(f);
+          for (const t of item.types) facts.types.push(t);
+          for (const a of item.asserts) facts.asserts.push(a);
+          cache.next.set(key, item);
+          continue;
+        }
+        mark = [facts.fns.length, facts.types.length, facts.asserts.length, facts.notices.length];
+      }
       switch (n.type) {
         case "mod_item": {
           const a = attrsBefore(n);
@@ -332,6 +398,10 @@ export function extractRust(file: string, tree: Tree, bodyCache?: BodyCache): Fi
           readConstAssert(n);
           break;
       }
+      if (key !== undefined && mark && facts.notices.length === mark[3]) {
+        // (an item whose reading left a notice is read again next time)
+        cache!.next.set(key, { row: n.startPosition.row, fns: facts.fns.slice(mark[0]), types: facts.types.slice(mark[1]), asserts: facts.asserts.slice(mark[2]) });
+      }
     }
   };
 
@@ -374,25 +444,8 @@ export function extractRust(file: string, tree: Tree, bodyCache?: BodyCache): Fi
     fn.isPub = n.namedChildren.some((c) => c.type === "visibility_modifier");
     fn.generic = !!n.childForFieldName("type_parameters") || hasSelf;
     if (n.childForFieldName("body")) {
-      // Body facts depend only on the function's text and its start: reuse them when unchanged.
-      const key = bodyCache ? `${n.startPosition.column}:${fn.params.length}:${n.text}` : "";
-      const hit = bodyCache?.prev.get(key) ?? bodyCache?.next.get(key);
-      const row = n.startPosition.row;
-      if (hit) {
-        // Body facts are never mutated once extracted, so an unmoved function shares them; a moved
-        // one gets a shifted copy, which becomes the cached entry for the next edit.
-        if (hit.row === row) fn.body = hit.body;
-        else {
-          fn.body = structuredClone(hit.body);
-          shiftLines(fn.body, row - hit.row);
-        }
-        bodyCache!.next.set(key, { row, body: fn.body });
-      } else {
-        const before = facts.notices.length;
-        fn.body = {};
-        for (const x of rustExtractors.fnBody) x(n, fn, facts);
-        if (bodyCache && facts.notices.length === before) bodyCache.next.set(key, { row, body: fn.body });
-      }
+      fn.body = {};
+      for (const x of rustExtractors.fnBody) x(n, fn, facts);
     }
     // Only functions that take part in the C ABI are boundary items; others are kept (not
     // exported) so body rules can follow helper calls inside the crate.

@@ -18,7 +18,7 @@ import type { FerruleConfig } from "../analysis/config.js";
 import type { Finding } from "../rules/api.js";
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
-import type { AbiType, BodyCache, FileFacts } from "../model/types.js";
+import type { AbiType, FileFacts, ItemCache } from "../model/types.js";
 import { langOf, type Tree } from "../parse/parser.js";
 
 export interface Pos {
@@ -38,8 +38,8 @@ export interface OpenDoc {
   /** Start offset of each line (UTF-16 code units), kept in step with `text`. */
   lineStarts: number[];
   tree?: Tree;
-  /** Function-body facts of the last extraction, reused for unchanged functions. */
-  bodies?: BodyCache["prev"];
+  /** Item facts of the last extraction, reused for unchanged items (Rust). */
+  items?: ItemCache;
 }
 
 function computeLineStarts(text: string): number[] {
@@ -269,9 +269,9 @@ export class Engine {
       const d = this.docs.get(file);
       if (d) {
         let fresh: Tree | undefined;
-        const bodyCache: BodyCache = { prev: d.bodies ?? new Map(), next: new Map() };
-        const did = this.ws.update(file, d.text, { oldTree: d.tree, keepTree: (t) => { fresh = t; }, bodyCache });
-        if (did) d.bodies = bodyCache.next;
+        const itemCache: ItemCache = { prev: d.items?.prev ?? new Map(), next: new Map(), consts: d.items?.consts };
+        const did = this.ws.update(file, d.text, { oldTree: d.tree, keepTree: (t) => { fresh = t; }, itemCache });
+        if (did) d.items = { prev: itemCache.next, next: new Map(), consts: itemCache.consts };
         if (fresh) {
           if (d.tree && d.tree !== fresh) d.tree.delete();
           d.tree = fresh;

@@ -87,7 +87,7 @@ function cancelled(token: CancellationToken | undefined): void {
 }
 
 export interface ServerStats {
-  lastAnalysis?: { scope: string; ms: number; changed: number; affected: number | "all"; context?: number };
+  lastAnalysis?: { scope: string; ms: number; changed: number; affected: number | "all"; context?: number; publishMs?: number };
 }
 
 export function startServer(conn?: Connection): void {
@@ -206,8 +206,10 @@ export function startServer(conn?: Connection): void {
     // case its (newer) result has already been published.
     if (myGen !== generation) return;
     stats.lastAnalysis = { scope: res.scope, ms: Math.round(res.ms * 10) / 10, changed: res.changed.length, affected: res.affected === "all" ? "all" : res.affected.size, context: engine.lastContext };
+    const tp = performance.now();
     byKey = new Map(res.findings.map((f) => [findingKey(f), f]));
     publish(res, versions);
+    stats.lastAnalysis.publishMs = Math.round((performance.now() - tp) * 10) / 10;
     if (res.scope === "scoped" && res.changed.length) scheduleIdleFullCheck();
   }
 

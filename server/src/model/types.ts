@@ -223,13 +223,26 @@ export interface Suppression {
   range: Range;
 }
 
+/** What one Rust item (function, aggregate, alias, const, extern block) contributed to its file's
+ * facts, kept for reuse by the next extraction of the same document. */
+export interface CachedItem {
+  /** Row of the item's first line when these facts were made. */
+  row: number;
+  fns: FnDecl[];
+  types: TypeDecl[];
+  asserts: SourceAssert[];
+}
+
 /**
- * Reuse of function-body facts between two extractions of one file (the language server passes
- * it for open documents). Body facts depend only on the function's own text and where it starts,
- * so an unchanged function's facts are reused with their lines shifted. Extraction reads `prev`
- * and fills `next`; the caller keeps `next` as the following `prev`.
+ * Reuse of item facts between two extractions of one file (the language server passes it for
+ * open documents). An item's facts depend only on its own text (attributes and doc comments
+ * included), its column and the file's integer consts, so an unchanged item's facts are reused:
+ * shared as they are when it did not move, copied with lines shifted when it did. Extraction reads
+ * `prev` and fills `next`; the caller keeps `next` as the following `prev`.
  */
-export interface BodyCache {
-  prev: Map<string, { row: number; body: BodyFacts }>;
-  next: Map<string, { row: number; body: BodyFacts }>;
+export interface ItemCache {
+  prev: Map<string, CachedItem>;
+  next: Map<string, CachedItem>;
+  /** The file's integer consts the entries of `prev` were made with (set by extraction). */
+  consts?: string;
 }
