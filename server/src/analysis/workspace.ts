@@ -111,12 +111,18 @@ export class Workspace {
     return this.entries.get(file)?.facts;
   }
 
-  /** Sets a file's text; returns false when the content did not change (nothing to redo). */
-  update(file: string, text: string, opts: Omit<ExtractOptions, "maxFileBytes"> = {}): boolean {
+  /** Sets a file's text; returns false when the content did not change (nothing to redo). With
+   * `force`, an unchanged text is read again all the same (same facts; still returns false). */
+  update(file: string, text: string, opts: Omit<ExtractOptions, "maxFileBytes"> = {}, force = false): boolean {
     const hash = createHash("sha1").update(text).digest("hex");
     const old = this.entries.get(file);
-    if (old && old.hash === hash) return false;
+    const same = !!old && old.hash === hash;
+    if (same && !force) return false;
     this.entries.set(file, { hash, facts: extractFile(file, text, { ...opts, maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros }) });
+    if (same) {
+      if (this.cachedModel) this.cachedModel = undefined; // same facts, new objects
+      return false;
+    }
     this.invalidate();
     return true;
   }
@@ -187,12 +193,13 @@ export class Workspace {
   }
 
   /** Runs the rules over a model of only these files (the language server's scoped re-check:
-   * an edit re-checks the boundary items it can affect; the caller picks the files). */
-  checkSubset(files: Iterable<string>): { findings: Finding[]; model: Model } {
+   * an edit re-checks the boundary items it can affect; the caller picks the files, and may
+   * stand in a part of a file's facts for the whole). */
+  checkSubset(files: Iterable<string>, replace?: Map<string, FileFacts>): { findings: Finding[]; model: Model } {
     const facts: FileFacts[] = [];
     for (const f of files) {
-      const e = this.entries.get(f);
-      if (e) facts.push(e.facts);
+      const e = replace?.get(f) ?? this.entries.get(f)?.facts;
+      if (e) facts.push(e);
     }
     const model = new Model(facts, { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families });
     return { findings: this.finish(runRules(model), model), model };

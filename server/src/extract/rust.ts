@@ -262,6 +262,8 @@ function movedItem(item: CachedItem, row: number): CachedItem {
   const delta = row - item.row;
   const c = structuredClone(item);
   c.row = row;
+  c.first += delta;
+  c.last += delta;
   shiftLines(c, delta);
   const reId = (d: { id: string }) => {
     const i = d.id.lastIndexOf("#");
@@ -315,6 +317,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     const consts = [...ctx.consts].join(";");
     if (cache.consts !== consts) cache.prev.clear();
     cache.consts = consts;
+    cache.order = [];
   }
 
   const visitItems = (container: Node) => {
@@ -323,10 +326,12 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
       const n = kids[i]!;
       let key: string | undefined;
       let mark: [number, number, number, number] | undefined;
+      let lead = n;
       if (cache && CACHED_ITEMS.has(n.type)) {
         // The item's text with the attributes and comments right before it.
         let j = i - 1;
         while (j >= 0 && LEAD.has(kids[j]!.type)) j--;
+        if (j + 1 < i) lead = kids[j + 1]!;
         const from = j >= 0 ? kids[j]!.endIndex : container.startIndex;
         key = `${n.startPosition.column}:${text!.slice(from, n.endIndex)}`;
         const hit = cache.prev.get(key) ?? cache.next.get(key);
@@ -337,6 +342,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           for (const t of item.types) facts.types.push(t);
           for (const a of item.asserts) facts.asserts.push(a);
           cache.next.set(key, item);
+          cache.order!.push({ item, from: hit });
           continue;
         }
         mark = [facts.fns.length, facts.types.length, facts.asserts.length, facts.notices.length];
@@ -398,9 +404,14 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           readConstAssert(n);
           break;
       }
-      if (key !== undefined && mark && facts.notices.length === mark[3]) {
+      if (key !== undefined && mark) {
+        const item: CachedItem = {
+          row: n.startPosition.row, first: lead.startPosition.row, last: n.endPosition.row,
+          fns: facts.fns.slice(mark[0]), types: facts.types.slice(mark[1]), asserts: facts.asserts.slice(mark[2]),
+        };
         // (an item whose reading left a notice is read again next time)
-        cache!.next.set(key, { row: n.startPosition.row, fns: facts.fns.slice(mark[0]), types: facts.types.slice(mark[1]), asserts: facts.asserts.slice(mark[2]) });
+        if (facts.notices.length === mark[3]) cache!.next.set(key, item);
+        cache!.order!.push({ item });
       }
     }
   };

@@ -18,7 +18,7 @@ import type { FerruleConfig } from "../analysis/config.js";
 import type { Finding } from "../rules/api.js";
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
-import type { AbiType, FileFacts, ItemCache } from "../model/types.js";
+import type { AbiType, CachedItem, FileFacts, ItemCache, Range } from "../model/types.js";
 import { langOf, type Tree } from "../parse/parser.js";
 
 export interface Pos {
@@ -106,13 +106,26 @@ function keysOf(f: FileFacts | undefined): { decl: Set<string>; use: Set<string>
   return { decl, use };
 }
 
+const itemKeyCache = new WeakMap<CachedItem, { decl: Set<string>; use: Set<string> }>();
+
+/** Names one Rust item declares and uses (as keysOf for a file). */
+function itemKeys(it: CachedItem): { decl: Set<string>; use: Set<string> } {
+  let k = itemKeyCache.get(it);
+  if (!k) {
+    k = keysOf({ file: "", lang: "rust", fns: it.fns, types: it.types, asserts: it.asserts, includes: [], calls: [], classes: [], defines: [], notices: [], hasErrors: false, extra: {} });
+    itemKeyCache.set(it, k);
+  }
+  return k;
+}
+
 export interface AnalysisResult {
   findings: Finding[];
   /** Files whose findings were recomputed (all files for a full check). */
   affected: Set<string> | "all";
   /** Files whose facts were re-extracted. */
   changed: string[];
-  scope: "full" | "scoped";
+  /** "items": only the changed items of one Rust document and what links to them (see itemScope). */
+  scope: "full" | "scoped" | "items";
   ms: number;
   /** Files in the sub-model of a scoped check. */
   context?: number;
@@ -213,6 +226,32 @@ export class Engine {
     this.dirty.add(file);
   }
 
+  /** Whether an open Rust document has not been read through the item cache yet (see seed). */
+  get needsSeed(): boolean {
+    for (const d of this.docs.values()) if (!d.items && !this.dirty.has(d.file) && langOf(d.file) === "rust") return true;
+    return false;
+  }
+
+  /**
+   * Reads open Rust documents that were opened unchanged (their facts came from disk) through the
+   * item cache, without re-checking anything (their facts do not change), so that the first edit
+   * can tell which items it changed. The server calls it after publishing, off the edit path.
+   */
+  seed(): void {
+    for (const d of this.docs.values()) {
+      if (d.items || this.dirty.has(d.file) || langOf(d.file) !== "rust") continue;
+      const itemCache: ItemCache = { prev: new Map(), next: new Map() };
+      let fresh: Tree | undefined;
+      this.ws.update(d.file, d.text, { oldTree: d.tree, keepTree: (t) => { fresh = t; }, itemCache }, true);
+      if (fresh) {
+        if (d.tree && d.tree !== fresh) d.tree.delete();
+        d.tree = fresh;
+      }
+      d.items = { prev: itemCache.next, next: new Map(), consts: itemCache.consts, order: itemCache.order };
+      this.reindex(d.file);
+    }
+  }
+
   close(file: string): void {
     const d = this.docs.get(file);
     if (!d) return;
@@ -257,7 +296,10 @@ export class Engine {
     const t0 = performance.now();
     const changed: string[] = [];
     const oldKeys = new Map<string, { decl: Set<string>; use: Set<string> }>();
+    const oldFacts = new Map<string, FileFacts | undefined>();
+    const itemMoves = new Map<string, { before?: ItemCache["order"]; after?: ItemCache["order"] }>();
     for (const file of this.dirty) {
+      oldFacts.set(file, this.ws.facts(file));
       oldKeys.set(file, this.fileKeys.get(file) ?? { decl: new Set(), use: new Set() });
       if (this.removed.has(file)) {
         this.ws.remove(file);
@@ -271,7 +313,10 @@ export class Engine {
         let fresh: Tree | undefined;
         const itemCache: ItemCache = { prev: d.items?.prev ?? new Map(), next: new Map(), consts: d.items?.consts };
         const did = this.ws.update(file, d.text, { oldTree: d.tree, keepTree: (t) => { fresh = t; }, itemCache });
-        if (did) d.items = { prev: itemCache.next, next: new Map(), consts: itemCache.consts };
+        if (did) {
+          itemMoves.set(file, { before: d.items?.order, after: itemCache.order });
+          d.items = { prev: itemCache.next, next: new Map(), consts: itemCache.consts, order: itemCache.order };
+        }
         if (fresh) {
           if (d.tree && d.tree !== fresh) d.tree.delete();
           d.tree = fresh;
@@ -285,6 +330,28 @@ export class Engine {
     const full = forceFull || this.needFull;
     if (!full && changed.length === 0) {
       return { findings: this.findings, affected: new Set(), changed, scope: "scoped", ms: performance.now() - t0 };
+    }
+    if (!full && changed.length === 1) {
+      const f = changed[0]!;
+      const m = itemMoves.get(f);
+      const narrow = m && this.itemScope(f, oldFacts.get(f), m.before, m.after);
+      if (narrow) {
+        const { findings } = this.ws.checkSubset(narrow.context, new Map([[f, narrow.partial]]));
+        const inDirty = (r: Range) => r.file !== f || narrow.dirty.some(([a, b]) => r.line >= a && r.line <= b);
+        const keep: Finding[] = [];
+        for (const x of this.findings) {
+          if (narrow.affected.has(x.range.file)) continue;
+          if (x.range.file === f && narrow.dirtyBefore.some(([a, b]) => x.range.line >= a && x.range.line <= b)) continue;
+          keep.push(narrow.shift(x));
+        }
+        const fresh = findings.filter((x) => narrow.affected.has(x.range.file) || (x.range.file === f && inDirty(x.range)));
+        this.findings = sortFindings([...keep, ...fresh]);
+        this.lastContext = narrow.context.size;
+        this.fullModel = undefined;
+        this.needFull = false;
+        const affected = new Set([...narrow.affected, f]);
+        return { findings: this.findings, affected, changed, scope: "items", ms: performance.now() - t0, context: narrow.context.size };
+      }
     }
     if (!full) {
       const { affected, context } = this.scopeOf(changed, oldKeys);
@@ -314,11 +381,40 @@ export class Engine {
   }
 
   private reindex(file: string): void {
-    this.unindex(file);
-    const k = keysOf(this.ws.facts(file));
+    const facts = this.ws.facts(file);
+    const order = this.docs.get(file)?.items?.order;
+    let k: { decl: Set<string>; use: Set<string> } | undefined;
+    if (order && facts?.lang === "rust") {
+      // An open Rust document: the union of its items' (cached) names, when its facts are
+      // exactly its items' facts.
+      let nf = 0, nt = 0, na = 0;
+      for (const e of order) {
+        nf += e.item.fns.length;
+        nt += e.item.types.length;
+        na += e.item.asserts.length;
+      }
+      if (nf === facts.fns.length && nt === facts.types.length && na === facts.asserts.length && !facts.defines.length && !facts.calls.length) {
+        k = { decl: new Set(), use: new Set() };
+        for (const e of order) {
+          const ik = itemKeys(e.item);
+          for (const x of ik.decl) k.decl.add(x);
+          for (const x of ik.use) k.use.add(x);
+        }
+      }
+    }
+    k ??= keysOf(facts);
+    const old = this.fileKeys.get(file);
+    if (old) {
+      // only the differences touch the index
+      for (const x of old.decl) if (!k.decl.has(x)) this.decl.get(x)?.delete(file);
+      for (const x of old.use) if (!k.use.has(x)) this.use.get(x)?.delete(file);
+      for (const x of k.decl) if (!old.decl.has(x)) addTo(this.decl, x, file);
+      for (const x of k.use) if (!old.use.has(x)) addTo(this.use, x, file);
+    } else {
+      for (const x of k.decl) addTo(this.decl, x, file);
+      for (const x of k.use) addTo(this.use, x, file);
+    }
     this.fileKeys.set(file, k);
-    for (const x of k.decl) addTo(this.decl, x, file);
-    for (const x of k.use) addTo(this.use, x, file);
   }
 
   private unindex(file: string): void {
@@ -327,6 +423,168 @@ export class Engine {
     for (const x of k.decl) this.decl.get(x)?.delete(file);
     for (const x of k.use) this.use.get(x)?.delete(file);
     this.fileKeys.delete(file);
+  }
+
+  /**
+   * The narrower scope of an edit to one open Rust document whose items were read through the
+   * item cache: only the items whose text changed (and the items of the file that share a name
+   * with them) are re-checked, with the other files that declare or use those names; the file's
+   * other findings stand, moved with their items when lines were inserted or removed. Returns
+   * undefined when this does not apply (a helper function or a const changed, the file has
+   * syntax errors, notices or suppressions, or an earlier finding sits outside every item), and
+   * the caller takes the file-level scope.
+   */
+  private itemScope(file: string, before: FileFacts | undefined, oldOrder: ItemCache["order"], newOrder: ItemCache["order"]): {
+    affected: Set<string>; context: Set<string>; partial: FileFacts;
+    dirty: [number, number][]; dirtyBefore: [number, number][]; shift: (f: Finding) => Finding;
+  } | undefined {
+    const after = this.ws.facts(file);
+    if (!before || !after || !oldOrder || !newOrder || before.lang !== "rust") return undefined;
+    if (before.hasErrors || after.hasErrors || before.notices.length || after.notices.length) return undefined;
+    if (before.extra.suppressions || after.extra.suppressions) return undefined;
+    const oldItems = new Set(oldOrder.map((e) => e.item));
+    const claimed = new Map<CachedItem, CachedItem>(); // old item → the new item reusing it
+    const fresh: CachedItem[] = [];
+    for (const e of newOrder) {
+      if (e.from && oldItems.has(e.from) && !claimed.has(e.from)) claimed.set(e.from, e.item);
+      else fresh.push(e.item);
+    }
+    const dropped = oldOrder.map((e) => e.item).filter((it) => !claimed.has(it));
+    if (!fresh.length && !dropped.length && [...claimed].every(([o, n]) => o.row === n.row)) {
+      // (only text outside items changed, nothing moved: no finding can change)
+      return { affected: new Set(), context: new Set(), partial: { ...after, fns: [], types: [], asserts: [] }, dirty: [], dirtyBefore: [], shift: (f) => f };
+    }
+    // Names the changed items declare and use.
+    const kDecl = new Set<string>();
+    const kUse = new Set<string>();
+    for (const it of [...fresh, ...dropped]) {
+      // (an item without facts — a const that is no integer, say — changes nothing; integer
+      // consts are part of every item's cache key)
+      if (!it.fns.length && !it.types.length && !it.asserts.length) continue;
+      const k = itemKeys(it);
+      // a helper (no name the seam links) can change what the functions calling it do
+      if (!k.decl.size || it.fns.some((fn) => (fn as { internal?: boolean }).internal)) return undefined;
+      k.decl.forEach((x) => kDecl.add(x));
+      k.use.forEach((x) => kUse.add(x));
+    }
+    const touches = (k: { decl: Set<string>; use: Set<string> }) => {
+      for (const x of k.decl) if (kDecl.has(x) || kUse.has(x)) return true;
+      for (const x of k.use) if (kDecl.has(x)) return true;
+      return false;
+    };
+    // Items of this file to re-check: the changed ones and those sharing a name with them.
+    const dirtyItems = new Set<CachedItem>(fresh);
+    for (const e of newOrder) if (touches(itemKeys(e.item))) dirtyItems.add(e.item);
+    const dirtyOld = new Set<CachedItem>(dropped);
+    for (const [o, n] of claimed) if (dirtyItems.has(n)) dirtyOld.add(o);
+    // Other files whose findings can change: those that declare or use a name of a re-checked item.
+    const affected = new Set<string>();
+    for (const it of [...dirtyItems, ...dropped]) {
+      const k = itemKeys(it);
+      for (const x of k.decl) {
+        this.decl.get(x)?.forEach((f) => affected.add(f));
+        this.use.get(x)?.forEach((f) => affected.add(f));
+      }
+      for (const x of k.use) this.decl.get(x)?.forEach((f) => affected.add(f));
+    }
+    const inRows = (line: number, items: Iterable<CachedItem>) => { for (const it of items) if (line >= it.first && line <= it.last) return true; return false; };
+    for (const f of this.findings) {
+      const here = [f.range, ...f.related.map((r) => r.range)].some((r) => r.file === file && inRows(r.line, dirtyOld));
+      if (here) {
+        affected.add(f.range.file);
+        for (const r of f.related) affected.add(r.range.file);
+      }
+    }
+    affected.delete(file);
+    // Context: the affected files, what they relate to, the headers they include.
+    const context = new Set<string>(affected);
+    for (const f of affected) {
+      const k = this.fileKeys.get(f);
+      if (!k) continue;
+      for (const x of k.decl) {
+        this.decl.get(x)?.forEach((g) => context.add(g));
+        this.use.get(x)?.forEach((g) => context.add(g));
+      }
+      for (const x of k.use) this.decl.get(x)?.forEach((g) => context.add(g));
+    }
+    context.delete(file);
+    const model = this.lastModel();
+    const stack = [...context];
+    while (stack.length) {
+      const f = stack.pop()!;
+      for (const inc of this.ws.facts(f)?.includes ?? []) {
+        if (inc.system) continue;
+        const r = model?.includeTarget(inc) ?? model?.resolveInclude(f, inc.path);
+        if (r && r !== file && !context.has(r) && this.ws.has(r)) {
+          context.add(r);
+          stack.push(r);
+        }
+      }
+    }
+    for (const f of [...context]) if (!this.ws.has(f)) context.delete(f);
+    // This file as the rules see it: the re-checked items, the items other context files link
+    // to, and every helper (body rules follow calls into them).
+    const ctxKeys = new Set<string>();
+    for (const f of context) {
+      const k = this.fileKeys.get(f);
+      k?.decl.forEach((x) => ctxKeys.add(x));
+      k?.use.forEach((x) => ctxKeys.add(x));
+    }
+    const chosen = new Set<CachedItem>();
+    const wanted = new Set<string>(); // names the chosen items use
+    const choose = (it: CachedItem) => {
+      if (chosen.has(it)) return false;
+      chosen.add(it);
+      itemKeys(it).use.forEach((x) => wanted.add(x));
+      return true;
+    };
+    for (const e of newOrder) {
+      const it = e.item;
+      const k = itemKeys(it);
+      if (dirtyItems.has(it) || !k.decl.size || [...k.decl].some((x) => ctxKeys.has(x)) || [...k.use].some((x) => ctxKeys.has(x))) choose(it);
+    }
+    // …and the types those use, declared in this file (to a fixpoint) or in other files.
+    for (let grew = true; grew;) {
+      grew = false;
+      for (const e of newOrder) if (!chosen.has(e.item) && [...itemKeys(e.item).decl].some((x) => wanted.has(x))) grew = choose(e.item) || grew;
+    }
+    for (const x of wanted) {
+      this.decl.get(x)?.forEach((f) => {
+        if (f !== file && this.ws.has(f)) context.add(f);
+      });
+    }
+    const partial: FileFacts = { ...after, fns: [], types: [], asserts: [] };
+    for (const e of newOrder) {
+      if (!chosen.has(e.item)) continue;
+      partial.fns.push(...e.item.fns);
+      partial.types.push(...e.item.types);
+      partial.asserts.push(...e.item.asserts);
+    }
+    // Earlier findings in this file (or pointing into it) move with their items.
+    const moves: [number, number, number][] = [];
+    let moved = false;
+    for (const [o, n] of claimed) {
+      moves.push([o.first, o.last, n.row - o.row]);
+      if (n.row !== o.row) moved = true;
+    }
+    const oldRows = oldOrder.map((e) => e.item);
+    for (const f of this.findings) {
+      for (const r of [f.range, ...f.related.map((x) => x.range)]) {
+        if (r.file === file && !inRows(r.line, oldRows)) return undefined;
+      }
+    }
+    const at = (r: Range): Range => {
+      if (r.file !== file) return r;
+      const m = moves.find(([a, b]) => r.line >= a && r.line <= b);
+      return m && m[2] ? { ...r, line: r.line + m[2], endLine: r.endLine + m[2] } : r;
+    };
+    const shift = (f: Finding): Finding => {
+      if (!moved) return f;
+      if (f.range.file !== file && !f.related.some((r) => r.range.file === file)) return f;
+      return { ...f, range: at(f.range), related: f.related.map((r) => (r.range.file === file ? { ...r, range: at(r.range) } : r)) };
+    };
+    const rows = (items: Iterable<CachedItem>) => [...items].map((it) => [it.first, it.last] as [number, number]);
+    return { affected, context: new Set([...context, file]), partial, dirty: rows(dirtyItems), dirtyBefore: rows(dirtyOld), shift };
   }
 
   /** Which files' findings an edit can change (affected) and which files the rules need to see

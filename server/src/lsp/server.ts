@@ -26,7 +26,7 @@ import { resolveConfig, type EditorSettings } from "./config.js";
 import { definitions, documentSymbols, hoverMarkdown, itemAt, layoutDocument, references } from "./features.js";
 
 export const GENERATE_HEADER_KIND = "source.generateCDeclarations.ferrule";
-const DEBOUNCE_MS = 12;
+const DEBOUNCE_MS = 2;
 const IDLE_FULL_CHECK_MS = 2000;
 
 const toUri = (file: string) => pathToFileURL(file).href;
@@ -50,7 +50,9 @@ function base(file: string): string {
 
 /** Diagnostics per file: each finding on its own file, and mirrored at each related location in
  * another file so both sides of the seam show it. */
-export function diagnosticsByFile(findings: Finding[]): Map<string, Diagnostic[]> {
+/** The diagnostics of each file (findings where they are, mirrors on the other side); with
+ * `only`, just for those files. */
+export function diagnosticsByFile(findings: Finding[], only?: Set<string>): Map<string, Diagnostic[]> {
   const out = new Map<string, Diagnostic[]>();
   const add = (file: string, d: Diagnostic) => {
     let a = out.get(file);
@@ -58,8 +60,9 @@ export function diagnosticsByFile(findings: Finding[]): Map<string, Diagnostic[]
     a.push(d);
   };
   for (const f of findings) {
+    if (only && !only.has(f.range.file) && !f.related.some((r) => only.has(r.range.file))) continue;
     const key = findingKey(f);
-    add(f.range.file, {
+    if (!only || only.has(f.range.file)) add(f.range.file, {
       range: lspRange(f.range), severity: SEV[f.severity] ?? DiagnosticSeverity.Warning, code: f.rule, source: "ferrule",
       message: f.message,
       relatedInformation: f.related.map((r) => ({ location: { uri: toUri(r.range.file), range: lspRange(r.range) }, message: r.message })),
@@ -67,7 +70,7 @@ export function diagnosticsByFile(findings: Finding[]): Map<string, Diagnostic[]
     });
     const mirrored = new Set<string>();
     for (const r of f.related) {
-      if (r.range.file === f.range.file) continue;
+      if (r.range.file === f.range.file || (only && !only.has(r.range.file))) continue;
       const mk = `${r.range.file}:${r.range.line}:${r.range.col}`;
       if (mirrored.has(mk)) continue;
       mirrored.add(mk);
@@ -102,6 +105,7 @@ export function startServer(conn?: Connection): void {
   let idleTimer: NodeJS.Timeout | undefined;
   let generation = 0;
   const published = new Map<string, string>(); // file → JSON of the last diagnostics sent
+  const mirrored = new Set<string>(); // files whose last diagnostics hold mirrors of other files' findings
   const forcePublish = new Set<string>(); // just opened: send its diagnostics even if unchanged
   let byKey = new Map<string, Finding>();
   const stats: ServerStats = {};
@@ -210,27 +214,42 @@ export function startServer(conn?: Connection): void {
     byKey = new Map(res.findings.map((f) => [findingKey(f), f]));
     publish(res, versions);
     stats.lastAnalysis.publishMs = Math.round((performance.now() - tp) * 10) / 10;
+    if (engine.needsSeed) {
+      setTimeout(() => {
+        try {
+          engine?.seed();
+        } catch (e) {
+          connection.console.error(`[ferrule] reading open documents failed: ${(e as Error).message}`);
+        }
+      }, 0);
+    }
     if (res.scope === "scoped" && res.changed.length) scheduleIdleFullCheck();
   }
 
   function publish(res: AnalysisResult, versions: Map<string, number>): void {
     if (!engine) return;
-    const diags = diagnosticsByFile(res.findings);
+    // Files with any diagnostic now (where a finding is, and where its mirrors are).
+    const hasDiag = new Set<string>();
+    for (const f of res.findings) {
+      hasDiag.add(f.range.file);
+      for (const r of f.related) hasDiag.add(r.range.file);
+    }
     const candidates = new Set<string>();
     if (res.affected === "all") {
-      for (const f of diags.keys()) candidates.add(f);
+      for (const f of hasDiag) candidates.add(f);
       for (const f of published.keys()) candidates.add(f);
     } else {
       for (const f of res.affected) candidates.add(f);
       for (const f of res.changed) candidates.add(f);
       // mirrors of affected files' findings live in other files
       for (const f of res.findings) if (res.affected.has(f.range.file)) for (const r of f.related) candidates.add(r.range.file);
-      for (const [file, json] of published) if (json.includes('"mirror":true') && !diags.has(file)) candidates.add(file);
-      for (const file of published.keys()) if (!diags.has(file)) candidates.add(file);
+      for (const file of mirrored) candidates.add(file);
+      for (const file of published.keys()) if (!hasDiag.has(file)) candidates.add(file);
     }
     const always = new Set([...res.changed, ...forcePublish]);
     for (const f of forcePublish) candidates.add(f);
     forcePublish.clear();
+    const diags = diagnosticsByFile(res.findings, candidates);
     for (const file of candidates) {
       const list = diags.get(file) ?? [];
       const json = JSON.stringify(list);
@@ -239,6 +258,8 @@ export function startServer(conn?: Connection): void {
       if (prev === undefined && list.length === 0 && !always.has(file) && !engine.docs.has(file)) continue;
       if (list.length) published.set(file, json);
       else published.delete(file);
+      if (list.some((d) => (d.data as { mirror?: boolean } | undefined)?.mirror)) mirrored.add(file);
+      else mirrored.delete(file);
       const version = versions.get(file);
       void connection.sendDiagnostics({ uri: toUri(file), diagnostics: list, ...(version !== undefined ? { version } : {}) });
     }

@@ -228,6 +228,9 @@ export interface Suppression {
 export interface CachedItem {
   /** Row of the item's first line when these facts were made. */
   row: number;
+  /** Rows the item spans, from its first attribute or doc comment to its last line. */
+  first: number;
+  last: number;
   fns: FnDecl[];
   types: TypeDecl[];
   asserts: SourceAssert[];
@@ -245,4 +248,7 @@ export interface ItemCache {
   next: Map<string, CachedItem>;
   /** The file's integer consts the entries of `prev` were made with (set by extraction). */
   consts?: string;
+  /** Filled by extraction: every item read, in order, with the previous extraction's item it
+   * reused (same object when it did not move), so a caller can tell what changed. */
+  order?: { item: CachedItem; from?: CachedItem }[];
 }
