@@ -91,3 +91,47 @@ describe("random edits: incremental analysis equals a fresh one", () => {
     );
   }, 120_000);
 });
+
+/** Start offset of every line, as the LSP counts lines (`\r\n`, `\r` and `\n` end a line). */
+function lineStartsOf(text: string): number[] {
+  const out = [0];
+  for (let i = 0; i < text.length; i++) {
+    if (text[i] === "\r" && text[i + 1] === "\n") i++;
+    if (text[i] === "\n" || text[i] === "\r") out.push(i + 1);
+  }
+  return out;
+}
+
+describe("line starts kept in step with edits", () => {
+  test("random replacements (LF and CRLF texts) leave the same line starts as a fresh count", () => {
+    const piece = fc.constantFrom("a", "fn x() {}", "\n", "\r\n", "\r", "\n\n", "é", "🛰", "");
+    fc.assert(
+      fc.property(fc.array(piece, { maxLength: 40 }), fc.array(fc.tuple(fc.nat(), fc.nat(), fc.array(piece, { maxLength: 4 })), { minLength: 1, maxLength: 8 }), (start, edits) => {
+        const engine = new Engine(new Workspace());
+        const file = path.join(DEMO, "scratch.rs");
+        let text = start.join("");
+        engine.open(file, text, 1);
+        let v = 1;
+        for (const [a, b, ins] of edits) {
+          const s = Math.min(a, b) % (text.length + 1);
+          const e = Math.max(s, Math.max(a, b) % (text.length + 1));
+          const insert = ins.join("");
+          engine.change(file, [{ range: { start: posAt2(text, s), end: posAt2(text, e) }, text: insert }], ++v);
+          text = text.slice(0, s) + insert + text.slice(e);
+          const d = engine.docs.get(file)!;
+          expect(d.text).toBe(text);
+          expect(d.lineStarts).toEqual(lineStartsOf(text));
+        }
+      }),
+      { seed: 4242, numRuns: 300 },
+    );
+  });
+});
+
+/** LSP position of an offset under the same line rules. */
+function posAt2(text: string, off: number): { line: number; character: number } {
+  const starts = lineStartsOf(text);
+  let line = 0;
+  while (line + 1 < starts.length && starts[line + 1]! <= off) line++;
+  return { line, character: off - starts[line]! };
+}

@@ -333,10 +333,14 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
         while (j >= 0 && LEAD.has(kids[j]!.type)) j--;
         if (j + 1 < i) lead = kids[j + 1]!;
         const from = j >= 0 ? kids[j]!.endIndex : container.startIndex;
-        key = `${n.startPosition.column}:${text!.slice(from, n.endIndex)}`;
-        const hit = cache.prev.get(key) ?? cache.next.get(key);
+        // (a slice, not a concatenation: a slice shares the text's memory; the column is
+        // compared on a hit)
+        key = text!.slice(from, n.endIndex);
+        const pos = n.startPosition;
+        let hit = cache.prev.get(key) ?? cache.next.get(key);
+        if (hit && hit.col !== pos.column) hit = undefined;
         if (hit) {
-          const row = n.startPosition.row;
+          const row = pos.row;
           const item = hit.row === row ? hit : movedItem(hit, row);
           for (const f of item.fns) facts.fns.push(f);
           for (const t of item.types) facts.types.push(t);
@@ -405,8 +409,9 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           break;
       }
       if (key !== undefined && mark) {
+        const pos = n.startPosition;
         const item: CachedItem = {
-          row: n.startPosition.row, first: lead.startPosition.row, last: n.endPosition.row,
+          row: pos.row, col: pos.column, first: lead === n ? pos.row : lead.startPosition.row, last: n.endPosition.row,
           fns: facts.fns.slice(mark[0]), types: facts.types.slice(mark[1]), asserts: facts.asserts.slice(mark[2]),
         };
         // (an item whose reading left a notice is read again next time)

@@ -250,7 +250,8 @@ export function startServer(conn?: Connection): void {
     for (const f of forcePublish) candidates.add(f);
     forcePublish.clear();
     const diags = diagnosticsByFile(res.findings, candidates);
-    for (const file of candidates) {
+    // the edited documents first: their diagnostics are the ones the user is waiting for
+    for (const file of [...always, ...[...candidates].filter((f) => !always.has(f))]) {
       const list = diags.get(file) ?? [];
       const json = JSON.stringify(list);
       const prev = published.get(file);

@@ -226,8 +226,9 @@ export interface Suppression {
 /** What one Rust item (function, aggregate, alias, const, extern block) contributed to its file's
  * facts, kept for reuse by the next extraction of the same document. */
 export interface CachedItem {
-  /** Row of the item's first line when these facts were made. */
+  /** Row and column of the item's start when these facts were made. */
   row: number;
+  col: number;
   /** Rows the item spans, from its first attribute or doc comment to its last line. */
   first: number;
   last: number;
