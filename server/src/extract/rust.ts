@@ -286,8 +286,9 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
 
   // Pass 1: integer consts (array lengths), anywhere at item level (modules, impl and trait
   // blocks; not inside functions or other consts' values).
-  const readConsts = (container: Node, depth: number) => {
-    for (const n of container.namedChildren) {
+  const rootKids = root.namedChildren; // (read once: both passes walk the top level)
+  const readConsts = (container: Node, depth: number, kids = container.namedChildren) => {
+    for (const n of kids) {
       switch (n.type) {
         case "const_item":
         case "static_item": {
@@ -310,7 +311,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
       }
     }
   };
-  readConsts(root, 0);
+  readConsts(root, 0, rootKids);
 
   const cache = text === undefined ? undefined : itemCache;
   if (cache) {
@@ -320,8 +321,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     cache.order = [];
   }
 
-  const visitItems = (container: Node) => {
-    const kids = container.namedChildren;
+  const visitItems = (container: Node, kids = container.namedChildren) => {
     for (let i = 0; i < kids.length; i++) {
       const n = kids[i]!;
       let key: string | undefined;
@@ -609,7 +609,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     return undefined;
   };
 
-  visitItems(root);
+  visitItems(root, rootKids);
   for (const x of rustExtractors.file) x(root, facts);
   return facts;
 }

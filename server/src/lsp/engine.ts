@@ -66,9 +66,19 @@ function editLineStarts(d: { text: string; lineStarts: number[] }, start: number
   const near = d.text.slice(Math.max(0, start - 1), start + inserted.length + 1);
   if (near.includes("\r") || startLine >= old.length || endLine >= old.length || startLine > endLine) return computeLineStarts(d.text);
   const delta = inserted.length - (end - start);
-  const out = old.slice(0, startLine + 1);
-  for (let i = inserted.indexOf("\n"); i >= 0; i = inserted.indexOf("\n", i + 1)) out.push(start + i + 1);
-  for (let i = endLine + 1; i < old.length; i++) out.push(old[i]! + delta);
+  const added: number[] = [];
+  for (let i = inserted.indexOf("\n"); i >= 0; i = inserted.indexOf("\n", i + 1)) added.push(start + i + 1);
+  if (added.length === endLine - startLine) {
+    // as many lines as before (the usual keystroke): update in place, nothing allocated
+    for (let i = 0; i < added.length; i++) old[startLine + 1 + i] = added[i]!;
+    if (delta) for (let i = endLine + 1; i < old.length; i++) old[i] += delta;
+    return old;
+  }
+  const out = new Array<number>(startLine + 1 + added.length + (old.length - endLine - 1));
+  let k = 0;
+  for (let i = 0; i <= startLine; i++) out[k++] = old[i]!;
+  for (const a of added) out[k++] = a;
+  for (let i = endLine + 1; i < old.length; i++) out[k++] = old[i]! + delta;
   return out;
 }
 
@@ -474,7 +484,7 @@ export class Engine {
     // Names the changed items declare and use.
     const kDecl = new Set<string>();
     const kUse = new Set<string>();
-    for (const it of [...fresh, ...dropped]) {
+    for (const it of fresh.concat(dropped)) {
       // (an item without facts — a const that is no integer, say — changes nothing; integer
       // consts are part of every item's cache key)
       if (!it.fns.length && !it.types.length && !it.asserts.length) continue;
@@ -496,7 +506,7 @@ export class Engine {
     for (const [o, n] of claimed) if (dirtyItems.has(n)) dirtyOld.add(o);
     // Other files whose findings can change: those that declare or use a name of a re-checked item.
     const affected = new Set<string>();
-    for (const it of [...dirtyItems, ...dropped]) {
+    for (const it of [...dirtyItems].concat(dropped)) {
       const k = itemKeys(it);
       for (const x of k.decl) {
         this.decl.get(x)?.forEach((f) => affected.add(f));
@@ -506,7 +516,7 @@ export class Engine {
     }
     const inRows = (line: number, items: Iterable<CachedItem>) => { for (const it of items) if (line >= it.first && line <= it.last) return true; return false; };
     for (const f of this.findings) {
-      const here = [f.range, ...f.related.map((r) => r.range)].some((r) => r.file === file && inRows(r.line, dirtyOld));
+      const here = (f.range.file === file && inRows(f.range.line, dirtyOld)) || f.related.some((r) => r.range.file === file && inRows(r.range.line, dirtyOld));
       if (here) {
         affected.add(f.range.file);
         for (const r of f.related) affected.add(r.range.file);
@@ -555,15 +565,19 @@ export class Engine {
       itemKeys(it).use.forEach((x) => wanted.add(x));
       return true;
     };
+    const anyIn = (xs: Set<string>, set: Set<string>) => {
+      for (const x of xs) if (set.has(x)) return true;
+      return false;
+    };
     for (const e of newOrder) {
       const it = e.item;
       const k = itemKeys(it);
-      if (dirtyItems.has(it) || !k.decl.size || [...k.decl].some((x) => ctxKeys.has(x)) || [...k.use].some((x) => ctxKeys.has(x))) choose(it);
+      if (dirtyItems.has(it) || !k.decl.size || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
     }
     // …and the types those use, declared in this file (to a fixpoint) or in other files.
     for (let grew = true; grew;) {
       grew = false;
-      for (const e of newOrder) if (!chosen.has(e.item) && [...itemKeys(e.item).decl].some((x) => wanted.has(x))) grew = choose(e.item) || grew;
+      for (const e of newOrder) if (!chosen.has(e.item) && anyIn(itemKeys(e.item).decl, wanted)) grew = choose(e.item) || grew;
     }
     for (const x of wanted) {
       this.decl.get(x)?.forEach((f) => {
@@ -581,14 +595,13 @@ export class Engine {
     const moves: [number, number, number][] = [];
     let moved = false;
     for (const [o, n] of claimed) {
-      moves.push([o.first, o.last, n.row - o.row]);
       if (n.row !== o.row) moved = true;
     }
+    if (moved) for (const [o, n] of claimed) moves.push([o.first, o.last, n.row - o.row]);
     const oldRows = oldOrder.map((e) => e.item);
     for (const f of this.findings) {
-      for (const r of [f.range, ...f.related.map((x) => x.range)]) {
-        if (r.file === file && !inRows(r.line, oldRows)) return undefined;
-      }
+      if (f.range.file === file && !inRows(f.range.line, oldRows)) return undefined;
+      for (const r of f.related) if (r.range.file === file && !inRows(r.range.line, oldRows)) return undefined;
     }
     const at = (r: Range): Range => {
       if (r.file !== file) return r;
