@@ -225,6 +225,93 @@ const topNodes = new WeakMap<object, Node[]>();
  * server keeps for incremental re-parsing must not keep these nodes alive too). */
 export function forgetWalks(tree: object): void {
   topNodes.delete(tree);
+  subIndexes.delete(tree);
+  if (active?.tree === tree) active = undefined;
+}
+
+/** The nodes of some types under one small subtree, found by one search (see indexSubtree). */
+interface SubIndex {
+  tree: object;
+  id: number;
+  start: number;
+  end: number;
+  types: Set<string>;
+  nodes: Node[];
+}
+const subIndexes = new WeakMap<object, Map<number, SubIndex>>();
+let active: SubIndex | undefined;
+/** Subtrees of at most this many nodes cannot nest deeper than the walks' depth limit. */
+const INDEX_MAX_NODES = 400;
+
+/**
+ * Finds once, inside wasm, the nodes of `types` under `scope` (a function body, a function
+ * definition); until another subtree is indexed, every walkTypes whose root lies inside `scope` and
+ * whose types are among these takes its nodes from that list instead of searching again (the
+ * extractors walk the same body several times: each rule family, and nested expressions). Only
+ * done for subtrees of at most INDEX_MAX_NODES nodes: no node there is deeper than the depth
+ * limit, so the answers are exactly those of a search from each root. Asking again for the same
+ * subtree (another family) reuses its list when it holds the types.
+ */
+export function indexSubtree(scope: Node, types: readonly string[]): void {
+  const tree = (scope as unknown as { tree: object }).tree;
+  let m = subIndexes.get(tree);
+  const old = m?.get(scope.id);
+  if (old && types.every((t) => old.types.has(t))) {
+    active = old;
+    return;
+  }
+  active = undefined;
+  if (scope.descendantCount > INDEX_MAX_NODES) return;
+  const all = old ? [...new Set([...old.types, ...types])] : [...new Set(types)];
+  all.sort();
+  const ix: SubIndex = { tree, id: scope.id, start: scope.startIndex, end: scope.endIndex, types: new Set(all), nodes: capture(scope, all, 400) };
+  if (!m) subIndexes.set(tree, (m = new Map()));
+  m.set(scope.id, ix);
+  active = ix;
+}
+
+/** Whether `n` (found in `root`'s range) is `root` or one of its descendants. */
+function isUnder(n: Node, root: Node): boolean {
+  if (n.id === root.id) return true;
+  for (let p = n.parent; p && p.startIndex >= root.startIndex && p.endIndex <= root.endIndex; p = p.parent) {
+    if (p.id === root.id) return true;
+  }
+  return false;
+}
+
+/** walkTypes' nodes from the active index, or undefined when it cannot answer for this root. */
+function fromIndex(root: Node, want: Set<string>, types: readonly string[]): Node[] | undefined {
+  const ix = active;
+  if (!ix || (root as unknown as { tree: object }).tree !== ix.tree) return undefined;
+  const s = root.startIndex;
+  const e = root.endIndex;
+  if (s < ix.start || e > ix.end) return undefined;
+  // a node with the scope's exact span other than the scope itself may be an ancestor of it
+  if (s === ix.start && e === ix.end && root.id !== ix.id) return undefined;
+  for (const t of types) if (!ix.types.has(t)) return undefined;
+  const nodes = ix.nodes;
+  let lo = 0;
+  let hi = nodes.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (nodes[mid]!.startIndex < s) lo = mid + 1;
+    else hi = mid;
+  }
+  const out: Node[] = [];
+  for (let i = lo; i < nodes.length; i++) {
+    const n = nodes[i]!;
+    const ns = n.startIndex;
+    if (ns > e) break;
+    const ne = n.endIndex;
+    if (ne > e || !want.has(n.type)) continue;
+    // Nodes are nested or disjoint, so one strictly inside the root's span is a descendant; the
+    // same span or an empty one may also be an ancestor or a neighbour: ask the tree.
+    if ((ns === s && ne === e) || ns === ne) {
+      if (!isUnder(n, root)) continue;
+    }
+    out.push(n);
+  }
+  return out;
 }
 
 /**
@@ -238,15 +325,21 @@ export function forgetWalks(tree: object): void {
  */
 export function walkTypes(root: Node, types: readonly string[], visit: (n: Node) => boolean | void, maxDepth = 400): void {
   const size = root.endIndex - root.startIndex;
-  if (size < SMALL_SUBTREE || size > LARGE_SUBTREE) {
+  let found: Node[] | undefined;
+  if (active && maxDepth === 400) {
+    let set = typeSets.get(types);
+    if (!set) typeSets.set(types, (set = new Set(types)));
+    found = fromIndex(root, set, types);
+  }
+  if (found) {
+    // taken from the active index (see indexSubtree)
+  } else if (size < SMALL_SUBTREE || size > LARGE_SUBTREE) {
     let set = typeSets.get(types);
     if (!set) typeSets.set(types, (set = new Set(types)));
     const s = set;
     walk(root, (n) => (s.has(n.type) ? visit(n) : undefined), maxDepth);
     return;
-  }
-  let found: Node[];
-  if (maxDepth === 400 && root.startIndex === 0 && TOP_TYPES_SET && types.every((t) => TOP_TYPES_SET!.has(t)) && root.parent === null) {
+  } else if (maxDepth === 400 && root.startIndex === 0 && TOP_TYPES_SET && types.every((t) => TOP_TYPES_SET!.has(t)) && root.parent === null) {
     // A walk of the whole file for declaration-level types: several extractors do one each, so the
     // nodes of all of them are found in one search per tree and each walk takes its types.
     const tree = (root as unknown as { tree: object }).tree;

@@ -21,3 +21,15 @@ export const cFileExtractors = {
   /** Called once per C/C++ file after the built-in extraction (call sites, classes, ports). */
   file: [] as FileExtractor[],
 };
+
+/**
+ * Node types the body extractors walk inside one function (each family adds its own when it
+ * registers). Every family indexes a function with the union (common.ts indexSubtree), so the
+ * function's nodes are searched for once, not once per family and per nested expression.
+ */
+export const bodyWalkTypes = {
+  /** under a Rust function item's body */
+  rust: new Set<string>(),
+  /** under a C/C++ function_definition */
+  c: new Set<string>(),
+};

@@ -24,20 +24,46 @@ function macroNames(root: Node, extra: readonly string[]): Set<string> {
   return names;
 }
 
+/** The identifier or type_identifier node spanning exactly [start, end) that a walk of the whole
+ * tree for those types would reach (not inside a `#define`, at most 400 levels deep), or null. */
+function macroUse(root: Node, start: number, end: number): Node | null {
+  let n: Node | null = root.descendantForIndex(start, end);
+  // the deepest node covering the span; an identifier is a leaf, so it is that node when it exists
+  while (n && n.startIndex === start && n.endIndex === end && n.type !== "identifier" && n.type !== "type_identifier") n = n.parent;
+  if (!n || n.startIndex !== start || n.endIndex !== end) return null;
+  let depth = 0;
+  for (let p = n.parent; p; p = p.parent) {
+    if (p.type === "preproc_def") return null;
+    depth++;
+  }
+  return depth <= 400 ? n : null;
+}
+
 /** The text with attribute-like macro uses blanked, or undefined when there is nothing to blank. */
 export function blankAttributeMacros(tree: Tree, text: string, extra: readonly string[] = []): string | undefined {
   const names = macroNames(tree.rootNode, extra);
   if (names.size === 0) return undefined;
   const spans: [number, number][] = [];
-  walkTypes(tree.rootNode, ["preproc_def", "identifier", "type_identifier"], (n) => {
-    if (n.type === "preproc_def") return false;
-    if (names.has(n.text)) {
+  // Each name's occurrences in the text are only candidates: the tree says which of them are an
+  // identifier use (not part of a longer name, a comment or a string). This visits a handful of
+  // nodes instead of every identifier of the file.
+  const root = tree.rootNode;
+  if (names.has("")) {
+    // an empty name (a setting) matches the zero-width identifiers the parser inserts as MISSING
+    walkTypes(root, ["preproc_def", "identifier", "type_identifier"], (n) => {
+      if (n.type === "preproc_def") return false;
+      if (names.has(n.text) && !(n.parent?.type ?? "").startsWith("preproc_")) spans.push([n.startIndex, n.endIndex]);
+      return;
+    });
+  } else for (const name of names) {
+    for (let at = text.indexOf(name); at >= 0; at = text.indexOf(name, at + 1)) {
+      const n = macroUse(root, at, at + name.length);
+      if (!n) continue;
       const p = n.parent?.type ?? "";
       // keep `#ifdef SONAR_API` and `#define SONAR_API` themselves
       if (!p.startsWith("preproc_")) spans.push([n.startIndex, n.endIndex]);
     }
-    return;
-  });
+  }
   if (spans.length === 0) return undefined;
   let out = "";
   let at = 0;

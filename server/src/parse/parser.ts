@@ -35,26 +35,46 @@ const WARM_UP: [GrammarName, string][] = [
   ["cpp", `#include <vector>\nextern "C" { int f(const float *p, unsigned long n); }\nnamespace k { class b { public: int w(const void *i) { auto *p = static_cast<const float *>(i); return f(p, 1); } private: std::vector<int> v_; }; }\n`],
 ];
 
+const MEMO_GETTERS = ["typeId", "endIndex", "endPosition", "childCount", "namedChildCount", "isNamed", "hasError", "isMissing", "text", "parent"] as const;
+
+/** A node's memoised answers, one object of one fixed shape per node (V8 keeps the accesses
+ * monomorphic; properties added to the node objects one by one made every node shape differ). */
+class NodeMemo {
+  typeId: unknown = undefined;
+  endIndex: unknown = undefined;
+  endPosition: unknown = undefined;
+  childCount: unknown = undefined;
+  namedChildCount: unknown = undefined;
+  isNamed: unknown = undefined;
+  hasError: unknown = undefined;
+  isMissing: unknown = undefined;
+  text: unknown = undefined;
+  parent: unknown = undefined;
+  fields: Map<number, unknown> | undefined = undefined;
+}
+
 /**
  * Memoises the read-only getters of syntax nodes. Each web-tree-sitter getter crosses into wasm
  * on every access (and `type`, `text`, `childForFieldName` are asked many times per node by the
  * extractors); a node's answers never change because ferrule never edits a tree in place (it
- * re-parses), so the first answer is kept on the node object. Measured: scripts/bench.mjs.
+ * re-parses), so the first answer is kept with the node. `childForFieldName` also looks the
+ * field up in a map instead of searching the grammar's field list on every call. Measured:
+ * scripts/bench.mjs.
  */
 function memoiseNodeGetters(proto: object): void {
   const p = proto as Record<string, unknown> & { __ferruleMemo?: boolean };
   if (p.__ferruleMemo) return;
   p.__ferruleMemo = true;
-  for (const name of ["typeId", "endIndex", "endPosition", "childCount", "namedChildCount", "isNamed", "hasError", "isMissing", "text", "parent"]) {
+  for (const name of MEMO_GETTERS) {
     const d = Object.getOwnPropertyDescriptor(proto, name);
     if (!d?.get) continue;
     const orig = d.get;
-    const slot = `_m_${name}`;
     Object.defineProperty(proto, name, {
       configurable: true,
-      get(this: Record<string, unknown>) {
-        let v = this[slot];
-        if (v === undefined) this[slot] = v = orig.call(this);
+      get(this: { _memo?: NodeMemo }) {
+        const m = (this._memo ??= new NodeMemo());
+        let v = m[name];
+        if (v === undefined) m[name] = v = orig.call(this);
         return v;
       },
     });
@@ -64,11 +84,31 @@ function memoiseNodeGetters(proto: object): void {
     Object.defineProperty(proto, "childForFieldId", {
       configurable: true,
       writable: true,
-      value(this: { _m_fields?: Map<number, unknown> }, id: number) {
-        const m = (this._m_fields ??= new Map());
+      value(this: { _memo?: NodeMemo }, id: number) {
+        const memo = (this._memo ??= new NodeMemo());
+        const m = (memo.fields ??= new Map());
         let v = m.get(id);
         if (v === undefined) m.set(id, (v = byField.call(this, id)));
         return v;
+      },
+    });
+    const fieldIds = new WeakMap<object, Map<string, number>>();
+    const idOf = (lang: { fields: (string | null)[] }, name: string): number => {
+      let m = fieldIds.get(lang);
+      if (!m) {
+        m = new Map();
+        // the first index of each name, as fields.indexOf would find it
+        lang.fields.forEach((f, i) => { if (f !== null && !m!.has(f)) m!.set(f, i); });
+        fieldIds.set(lang, m);
+      }
+      return m.get(name) ?? -1;
+    };
+    Object.defineProperty(proto, "childForFieldName", {
+      configurable: true,
+      writable: true,
+      value(this: { tree: { language: { fields: (string | null)[] } }; childForFieldId(id: number): unknown }, name: string) {
+        const id = idOf(this.tree.language, name);
+        return id !== -1 ? this.childForFieldId(id) : null;
       },
     });
   }

@@ -17,8 +17,8 @@ import type { Node } from "../../parse/parser.js";
 import type { AbiType, CallSite, Expr, FileFacts, FnDecl, Range } from "../../model/types.js";
 import type { BufferHint, CBufferFacts, CFnScope, CVar, RustBufferFacts } from "../../model/buffer-facts.js";
 import { parseText } from "../../parse/parser.js";
-import { cFileExtractors, rustExtractors } from "../hooks.js";
-import { evalConst, parseIntLit, rangeOf, walk, walkTypes } from "../common.js";
+import { bodyWalkTypes, cFileExtractors, rustExtractors } from "../hooks.js";
+import { evalConst, indexSubtree, parseIntLit, rangeOf, walk, walkTypes } from "../common.js";
 import { applyDeclarator, cScalar, readParams, typeFromSpecifier, type DeclCtx } from "../ctypes.js";
 import { rustType } from "../rust.js";
 
@@ -370,7 +370,13 @@ function fnDeclaratorOf(n: Node): Node | null {
   return d?.type === "function_declarator" ? d : null;
 }
 
+// The per-function walks below (locals; calls in the body and the member-initialiser list).
+const C_FN_WALKED = ["declaration", "lambda_expression", "class_specifier", "call_expression"];
+for (const t of C_FN_WALKED) bodyWalkTypes.c.add(t);
+let C_FN_INDEX: string[] = [];
+
 function extractCFile(root: Node, facts: FileFacts): void {
+  C_FN_INDEX = [...bodyWalkTypes.c];
   const file = facts.file;
   const ctx: DeclCtx = { file, consts: new Map() };
   const out: CBufferFacts = { fns: [] };
@@ -408,6 +414,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   const fieldCache = new Map<string, CVar[]>();
   const calls: CallSite[] = [];
   walkTypes(root, ["function_definition"], (n) => {
+    indexSubtree(n, C_FN_INDEX);
     const fd = fnDeclaratorOf(n);
     const nameNode = fd?.childForFieldName("declarator");
     if (!fd || !nameNode) return false;
@@ -715,6 +722,11 @@ export function exprRoot(e: Expr): string | undefined {
   return undefined;
 }
 
+// Only these node types matter below (visitNode's and the binders'); the rest are found in wasm.
+const VISITED = ["call_expression", "binary_expression", "assignment_expression", "compound_assignment_expr", "unary_expression"];
+const RUST_BODY_WALKED = ["function_item", "closure_expression", "for_expression", "let_condition", "match_arm", "let_declaration", ...VISITED];
+for (const t of RUST_BODY_WALKED) bodyWalkTypes.rust.add(t);
+
 function extractRustBody(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
   const file = facts.file;
   const body = fnNode.childForFieldName("body");
@@ -734,9 +746,8 @@ function extractRustBody(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     walkTypes(pat, ["identifier"], (m) => { bound.set(m.text, undefined); });
   };
   const base = fnNode.startIndex;
-  // Only these node types matter below (visitNode's and the binders'); the rest are found in wasm.
-  const VISITED = ["call_expression", "binary_expression", "assignment_expression", "compound_assignment_expr", "unary_expression"];
-  walkTypes(body, ["function_item", "closure_expression", "for_expression", "let_condition", "match_arm", "let_declaration", ...VISITED], (n) => {
+  indexSubtree(body, [...bodyWalkTypes.rust]);
+  walkTypes(body, RUST_BODY_WALKED, (n) => {
     const pos = n.startIndex - base;
     switch (n.type) {
       case "function_item":

@@ -20,8 +20,8 @@ import type { FileFacts, FnDecl, Range } from "../../model/types.js";
 import type {
   CArg, CClass, CEvent, CField, CFlow, COwnFacts, CRef, MemberKind, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl,
 } from "../../model/ownership.js";
-import { rangeOf, walk, walkTypes } from "../common.js";
-import { cFileExtractors, rustExtractors } from "../hooks.js";
+import { indexSubtree, rangeOf, walk, walkTypes } from "../common.js";
+import { bodyWalkTypes, cFileExtractors, rustExtractors } from "../hooks.js";
 
 // ---------------------------------------------------------------- Rust
 
@@ -30,6 +30,7 @@ const INT_PRIMS = new Set(["i8", "u8", "i16", "u16", "i32", "u32", "i64", "u64",
 
 /** The node types extractRustFn's body walk acts on (the others are found inside wasm). */
 const RUST_VISITED = ["function_item", "impl_item", "mod_item", "let_declaration", "reference_expression", "macro_invocation", "index_expression", "binary_expression", "compound_assignment_expr", "call_expression"];
+for (const t of RUST_VISITED) bodyWalkTypes.rust.add(t);
 const PANIC_MACROS: Record<string, RustOwnFacts["panics"][number]["kind"]> = {
   panic: "panic", unreachable: "unreachable", todo: "todo", unimplemented: "todo",
   assert: "assert", assert_eq: "assert", assert_ne: "assert",
@@ -168,6 +169,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     return undefined;
   };
 
+  indexSubtree(body, [...bodyWalkTypes.rust]);
   walkTypes(body, RUST_VISITED, (n) => {
     if (n.type === "function_item" || n.type === "impl_item" || n.type === "mod_item") return false;
     switch (n.type) {
@@ -539,6 +541,12 @@ let curExits = false;
  * only these types visits every node the full walk would act on. */
 let exprTypes: string[] = [];
 const EXPR_TYPES = ["compound_statement", "lambda_expression", "declaration", "assignment_expression", "delete_expression", "return_statement", "call_expression", "field_expression", "identifier"];
+// Statement types of C/C++ blocks: visiting a type that is not a block statement in the file does
+// nothing (see exprTypes), so listing the usual ones lets every family share one index.
+const STATEMENT_TYPES = ["expression_statement", "if_statement", "for_statement", "for_range_loop", "while_statement", "do_statement",
+  "switch_statement", "case_statement", "break_statement", "continue_statement", "goto_statement", "labeled_statement", "throw_statement",
+  "try_statement", "comment", "ERROR", "function_definition", "type_definition"];
+for (const t of [...EXPR_TYPES, ...STATEMENT_TYPES]) bodyWalkTypes.c.add(t);
 
 function enterBlock(block: Node, isFunctionBody: boolean): void {
   const kids = block.namedChildren;
@@ -557,6 +565,7 @@ function exitsAfter(_n: Node): boolean {
 }
 
 function extractFlow(def: Node, file: string, className: string | undefined, out: CFlow[]): CFlow | undefined {
+  indexSubtree(def, [...bodyWalkTypes.c, ...exprTypes]);
   const decl = def.childForFieldName("declarator");
   const fd = functionDeclarator(decl);
   if (!fd) return undefined;
