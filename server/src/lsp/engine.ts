@@ -366,17 +366,21 @@ export class Engine {
         const { findings } = this.ws.checkSubset(narrow.context, new Map([[f, narrow.partial]]));
         const inDirty = (r: Range) => r.file !== f || narrow.dirty.some(([a, b]) => r.line >= a && r.line <= b);
         const keep: Finding[] = [];
+        const moved = new Set<string>(); // files whose kept findings point at moved lines
         for (const x of this.findings) {
           if (narrow.affected.has(x.range.file)) continue;
           if (x.range.file === f && narrow.dirtyBefore.some(([a, b]) => x.range.line >= a && x.range.line <= b)) continue;
-          keep.push(narrow.shift(x));
+          const y = narrow.shift(x);
+          if (y !== x) moved.add(y.range.file);
+          keep.push(y);
         }
         const fresh = findings.filter((x) => narrow.affected.has(x.range.file) || (x.range.file === f && inDirty(x.range)));
         this.findings = sortFindings([...keep, ...fresh]);
         this.lastContext = narrow.context.size;
         this.fullModel = undefined;
         this.needFull = false;
-        const affected = new Set([...narrow.affected, f]);
+        // (files with moved findings are republished, not re-checked)
+        const affected = new Set([...narrow.affected, ...moved, f]);
         return { findings: this.findings, affected, changed, scope: "items", ms: performance.now() - t0, context: narrow.context.size };
       }
     }

@@ -105,7 +105,6 @@ export function startServer(conn?: Connection): void {
   let idleTimer: NodeJS.Timeout | undefined;
   let generation = 0;
   const published = new Map<string, string>(); // file → JSON of the last diagnostics sent
-  const mirrored = new Set<string>(); // files whose last diagnostics hold mirrors of other files' findings
   const forcePublish = new Set<string>(); // just opened: send its diagnostics even if unchanged
   let byKey = new Map<string, Finding>();
   const stats: ServerStats = {};
@@ -211,8 +210,9 @@ export function startServer(conn?: Connection): void {
     if (myGen !== generation) return;
     stats.lastAnalysis = { scope: res.scope, ms: Math.round(res.ms * 10) / 10, changed: res.changed.length, affected: res.affected === "all" ? "all" : res.affected.size, context: engine.lastContext };
     const tp = performance.now();
+    const before = byKey;
     byKey = new Map(res.findings.map((f) => [findingKey(f), f]));
-    publish(res, versions);
+    publish(res, versions, before);
     stats.lastAnalysis.publishMs = Math.round((performance.now() - tp) * 10) / 10;
     if (engine.needsSeed) {
       setTimeout(() => {
@@ -226,7 +226,7 @@ export function startServer(conn?: Connection): void {
     if (res.scope === "scoped" && res.changed.length) scheduleIdleFullCheck();
   }
 
-  function publish(res: AnalysisResult, versions: Map<string, number>): void {
+  function publish(res: AnalysisResult, versions: Map<string, number>, before: Map<string, Finding>): void {
     if (!engine) return;
     // Files with any diagnostic now (where a finding is, and where its mirrors are).
     const hasDiag = new Set<string>();
@@ -243,7 +243,8 @@ export function startServer(conn?: Connection): void {
       for (const f of res.changed) candidates.add(f);
       // mirrors of affected files' findings live in other files
       for (const f of res.findings) if (res.affected.has(f.range.file)) for (const r of f.related) candidates.add(r.range.file);
-      for (const file of mirrored) candidates.add(file);
+      // and where the mirrors of their previous findings were
+      for (const f of before.values()) if (res.affected.has(f.range.file)) for (const r of f.related) candidates.add(r.range.file);
       for (const file of published.keys()) if (!hasDiag.has(file)) candidates.add(file);
     }
     const always = new Set([...res.changed, ...forcePublish]);
@@ -259,8 +260,6 @@ export function startServer(conn?: Connection): void {
       if (prev === undefined && list.length === 0 && !always.has(file) && !engine.docs.has(file)) continue;
       if (list.length) published.set(file, json);
       else published.delete(file);
-      if (list.some((d) => (d.data as { mirror?: boolean } | undefined)?.mirror)) mirrored.add(file);
-      else mirrored.delete(file);
       const version = versions.get(file);
       void connection.sendDiagnostics({ uri: toUri(file), diagnostics: list, ...(version !== undefined ? { version } : {}) });
     }
