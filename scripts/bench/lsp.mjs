@@ -5,6 +5,8 @@
 //     publishDiagnostics for that document version (median and p95). Every other edit introduces
 //     a parameter mismatch and the next one removes it, and the run checks the diagnostic really
 //     appears and clears.
+//   - the same for an edit in the header that declares the edited function (size_t → uint32_t and
+//     back), which takes the file-level scope;
 //   - first diagnostics: from textDocument/didOpen of that file (workspace already indexed) to its
 //     first publishDiagnostics; and the cold start (spawn → workspace indexed and checked).
 // The server's own analysis time per edit (ferrule/stats) is reported beside the protocol time.
@@ -139,8 +141,39 @@ export async function measureLsp({ workspace, file, edits = 60, pauseMs = 120 })
       if (s.lastAnalysis) { server.push(s.lastAnalysis.ms); publishMs.push(s.lastAnalysis.publishMs ?? 0); }
       await new Promise((r) => setTimeout(r, pauseMs));
     }
+    // the same kind of edit in the header that declares that function (the file-level scope)
+    const fnName = /extern "C" fn (\w+)\(/.exec(lines[line])[1];
+    const incDir = path.join(workspace, "include");
+    const headers = [];
+    const walkH = (d) => { for (const e of fs.readdirSync(d, { withFileTypes: true })) { const p = path.join(d, e.name); if (e.isDirectory()) walkH(p); else if (e.name.endsWith(".h")) headers.push(p); } };
+    if (fs.existsSync(incDir)) walkH(incDir);
+    const header = headers.find((h) => fs.readFileSync(h, "utf8").includes(` ${fnName}(`));
+    const hLat = [];
+    if (header) {
+      const htext = fs.readFileSync(header, "utf8");
+      const hu = uriOf(header);
+      const hOpen = waitPublish((p) => p.uri === hu);
+      await conn.sendNotification("textDocument/didOpen", { textDocument: { uri: hu, languageId: "c", version: 1, text: htext } });
+      await hOpen;
+      const hl = htext.split("\n");
+      const hline = hl.findIndex((l) => l.includes(` ${fnName}(`) && l.includes("size_t n"));
+      if (hline >= 0) {
+        const hcol = hl[hline].indexOf("size_t n");
+        let hv = 1;
+        for (let i = 0; i < Math.max(10, Math.floor(edits / 3)); i++) {
+          const [from, to] = i % 2 === 0 ? ["size_t", "uint32_t"] : ["uint32_t", "size_t"];
+          const v = ++hv;
+          const pr = waitPublish((p) => p.uri === hu && p.version === v);
+          const ts = performance.now();
+          await conn.sendNotification("textDocument/didChange", { textDocument: { uri: hu, version: v }, contentChanges: [{ range: { start: { line: hline, character: hcol }, end: { line: hline, character: hcol + from.length } }, text: to }] });
+          hLat.push((await pr) - ts);
+          await new Promise((r) => setTimeout(r, pauseMs));
+        }
+      }
+    }
     const stats = await conn.sendRequest("ferrule/stats");
     return {
+      headerEditToDiagnostics: hLat.length ? { n: hLat.length, medianMs: quantile(hLat, 0.5), p95Ms: quantile(hLat, 0.95), file: path.relative(workspace, header) } : undefined,
       coldStartMs: Math.round(coldMs), files: stats0.files, findings: stats0.findings,
       firstDiagnosticsMs: +firstMs.toFixed(1),
       editToDiagnostics: { n: lat.length, medianMs: quantile(lat, 0.5), p95Ms: quantile(lat, 0.95), maxMs: quantile(lat, 1), firstMs: +lat[0].toFixed(1) },
