@@ -134,6 +134,10 @@ describe("ferrule lsp --stdio on the demo", () => {
     expect(md).toContain("n_samples: i64");
     expect(md).toContain("```c\n");
     expect(md).toContain("long n_samples");
+    // the buffer contract ferrule paired: `beam` holds `n_samples` items, from the Rust body
+    const at = lineOf(fs.readFileSync(RUST, "utf8"), "from_raw_parts(beam") + 1;
+    expect(md).toContain(`**Buffers**`);
+    expect(md).toContain(`- \`beam\` holds \`n_samples as usize\` items — \`from_raw_parts(beam, n_samples as usize)\` at lib.rs:${at}`);
   });
 
   test("definition jumps from the C prototype to the Rust function, and back", async () => {

@@ -7,6 +7,7 @@ import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range, TypeDecl } from "../model/types.js";
 import { layoutTable } from "../cli/layout-cmd.js";
+import { contractOf } from "../model/pairing.js";
 
 export interface Pos {
   line: number;
@@ -166,10 +167,31 @@ export function hoverMarkdown(model: Model, item: Item, textOf: TextOf, roots: s
   if (!rust.length) parts.push("_No Rust side found in the workspace._");
   for (const f of c) parts.push(`${f.lang === "cpp" ? "C++" : "C"} ${f.role === "def" ? "definition" : "declaration"} — ${where(roots, f.range)}\n\`\`\`${f.lang === "cpp" ? "cpp" : "c"}\n${signatureText(f, textOf)}\n\`\`\``);
   if (!c.length) parts.push("_No C/C++ declaration found in the workspace._");
+  const buffers = bufferLines(model, item.symbol);
+  if (buffers.length) parts.push(`**Buffers** (pointer ↔ length, as ferrule paired them)\n\n${buffers.join("\n")}`);
   const aggs = new Set<TypeDecl>();
   for (const f of fns) for (const d of aggregatesOf(model, f)) aggs.add(d);
   for (const d of aggs) parts.push(layoutBlock(model, d, roots));
   return parts.join("\n\n");
+}
+
+/** The function's buffer contract: each pointer's length, unit and where the pairing comes from. */
+function bufferLines(model: Model, symbol: string): string[] {
+  let k;
+  try {
+    k = contractOf(model, symbol);
+  } catch {
+    return [];
+  }
+  if (!k) return [];
+  const out: string[] = [];
+  for (const p of [...k.pairs.values()].sort((a, b) => a.ptr - b.ptr)) {
+    const access = p.access && p.access !== "none" ? `, ${p.access.replace("_", "-")}` : "";
+    out.push(`- \`${p.ptrName}\` holds \`${p.lenText}\` ${p.unit}${access} — ${p.evidence}`);
+  }
+  for (const [i, why] of k.nullable) out.push(`- parameter ${i + 1} may be NULL — ${why}`);
+  for (const a of k.alias) out.push(`- parameters ${a.a + 1} and ${a.b + 1} may overlap — ${a.evidence}`);
+  return out;
 }
 
 /** Plain-text layout of one type (both sides) for the "show layout" command. */
