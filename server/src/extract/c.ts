@@ -3,7 +3,7 @@
 
 import type { Node, Tree } from "../parse/parser.js";
 import type { AbiType, Field, FileFacts, FnDecl, Lang, SourceAssert, TypeDecl } from "../model/types.js";
-import { docAbove, emptyFacts, evalConst, rangeOf, trailingComment, walkTypes } from "./common.js";
+import { docAbove, emptyFacts, evalConst, rangeOf, trailingComment, walkFile } from "./common.js";
 import { applyDeclarator, complexBase, cScalar, typeFromSpecifier, type DeclCtx } from "./ctypes.js";
 import { cFileExtractors } from "./hooks.js";
 
@@ -184,7 +184,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
   };
 
   // Every type the switch below acts on; the nodes in between are found inside wasm.
-  walkTypes(root, C_VISITED, (n) => {
+  walkFile(root, C_VISITED, (n) => {
     switch (n.type) {
       case "preproc_include": {
         const p = n.childForFieldName("path");

@@ -206,9 +206,10 @@ function queryFor(root: Node, types: readonly string[]): Parser.Query | null {
 function capture(root: Node, types: readonly string[], maxDepth: number): Node[] {
   const q = queryFor(root, types);
   if (!q) return [];
-  const found = q.captures(root, { maxStartDepth: maxDepth }).map((c) => c.node);
-  found.sort((a, b) => a.startIndex - b.startIndex || b.endIndex - a.endIndex);
-  return found;
+  // each end offset read once (a call into wasm), not once per comparison
+  const found = q.captures(root, { maxStartDepth: maxDepth }).map((c) => ({ n: c.node, s: c.node.startIndex, e: c.node.endIndex }));
+  found.sort((a, b) => a.s - b.s || b.e - a.e);
+  return found.map((x) => x.n);
 }
 
 /** Types the whole-file walks of the C/C++ extractors ask for (c.ts, macros.ts, the buffers and
@@ -218,8 +219,59 @@ const TOP_TYPES = [
   "struct_specifier", "union_specifier", "enum_specifier", "call_expression", "static_assert_declaration", "class_specifier",
   "template_declaration", "compound_statement", "enumerator", "parameter_declaration",
 ];
-const TOP_TYPES_SET: Set<string> | undefined = new Set(TOP_TYPES);
-const topNodes = new WeakMap<object, Node[]>();
+const TOP_TYPES_SET: Set<string> = new Set(TOP_TYPES);
+const topNodes = new WeakMap<object, TopNodes>();
+
+/** The whole-file search of TOP_TYPES: one capture name per type, so each found node's type comes
+ * with it (reading `node.type` is a call into wasm, and every whole-file walk filters the list). */
+const topQueries = new WeakMap<object, Parser.Query | null>();
+
+/** A whole file's TOP_TYPES nodes with their types, in walkTypes' order. */
+interface TopNodes {
+  nodes: Node[];
+  types: string[];
+}
+
+/**
+ * The TOP_TYPES nodes of a whole file (what `capture(root, TOP_TYPES, 400)` finds, in the same
+ * order, each with its type) minus those nested in a compound statement that is itself inside a
+ * function definition: every walkFile leaves those out anyway (each either lists
+ * `compound_statement` and returns false for it, or returns false for `function_definition`), so
+ * it visits the same nodes as with the full list, and the list each walk filters is shorter.
+ * Only span containment decides (nodes nest or are disjoint, so a non-empty node strictly inside
+ * another's span is its descendant); a node sharing a span or an empty one is kept, which is
+ * always safe. (Skipping function bodies inside the search itself, with byte ranges between them,
+ * was measured: tree-sitter's cursor then walks up to each range again, and that costs as much as
+ * stepping through the bodies.)
+ */
+function captureTop(root: Node): TopNodes {
+  const lang = (root as unknown as { tree: { language: Parser.Language } }).tree.language;
+  let q = topQueries.get(lang);
+  if (q === undefined) {
+    const known = TOP_TYPES.filter((t) => lang.idForNodeType(t, true) !== null);
+    q = known.length ? lang.query(`[${known.map((t) => `(${t}) @${t}`).join(" ")}]`) : null;
+    topQueries.set(lang, q);
+  }
+  if (!q) return { nodes: [], types: [] };
+  const found = q.captures(root, { maxStartDepth: 400 }).map((c) => ({ n: c.node, t: c.name, s: c.node.startIndex, e: c.node.endIndex }));
+  found.sort((a, b) => a.s - b.s || b.e - a.e);
+  const nodes: Node[] = [];
+  const types: string[] = [];
+  // The outermost open function definition and the compound statements strictly inside it.
+  let fnEnd = -1;
+  let fnStart = -1;
+  const blocks: { s: number; e: number }[] = [];
+  for (const x of found) {
+    if (x.s >= fnEnd) { fnEnd = -1; blocks.length = 0; }
+    while (blocks.length && x.s >= blocks[blocks.length - 1]!.e) blocks.pop();
+    if (x.e > x.s && blocks.some((b) => x.s >= b.s && x.e <= b.e && (x.s > b.s || x.e < b.e))) continue;
+    nodes.push(x.n);
+    types.push(x.t);
+    if (x.t === "function_definition" && fnEnd < 0 && x.e > x.s) { fnStart = x.s; fnEnd = x.e; }
+    else if (x.t === "compound_statement" && fnEnd >= 0 && x.e > x.s && x.s >= fnStart && x.e <= fnEnd && (x.s > fnStart || x.e < fnEnd)) blocks.push({ s: x.s, e: x.e });
+  }
+  return { nodes, types };
+}
 
 /** Drops what walkTypes keeps for a tree (call when its extraction is done: a tree the language
  * server keeps for incremental re-parsing must not keep these nodes alive too). */
@@ -324,6 +376,21 @@ function fromIndex(root: Node, want: Set<string>, types: readonly string[]): Nod
  * (cheaper than the query's fixed cost), and so do very large ones (see LARGE_SUBTREE). Checks the time budget like `walk`.
  */
 export function walkTypes(root: Node, types: readonly string[], visit: (n: Node) => boolean | void, maxDepth = 400): void {
+  walkTypesIn(root, types, visit, maxDepth, false);
+}
+
+/**
+ * `walkTypes` over a whole C/C++ file, for a walk that leaves function bodies out: `types` lists
+ * `compound_statement` or `function_definition`, and `visit` returns false for every node of those
+ * two types it gets (checked; a walk that does not is a programming error and throws). Such walks
+ * share one search per tree (see captureTop), which finds nothing nested in a function body.
+ */
+export function walkFile(root: Node, types: readonly string[], visit: (n: Node) => boolean | void): void {
+  walkTypesIn(root, types, visit, 400, root.parent === null && (types.includes("compound_statement") || types.includes("function_definition")));
+}
+
+function walkTypesIn(root: Node, types: readonly string[], visit: (n: Node) => boolean | void, maxDepth: number, fileWalk: boolean): void {
+  let foundTypes: string[] | undefined;
   const size = root.endIndex - root.startIndex;
   let found: Node[] | undefined;
   if (active && maxDepth === 400) {
@@ -339,16 +406,23 @@ export function walkTypes(root: Node, types: readonly string[], visit: (n: Node)
     const s = set;
     walk(root, (n) => (s.has(n.type) ? visit(n) : undefined), maxDepth);
     return;
-  } else if (maxDepth === 400 && root.startIndex === 0 && TOP_TYPES_SET && types.every((t) => TOP_TYPES_SET!.has(t)) && root.parent === null) {
+  } else if (fileWalk && types.every((t) => TOP_TYPES_SET.has(t))) {
     // A walk of the whole file for declaration-level types: several extractors do one each, so the
     // nodes of all of them are found in one search per tree and each walk takes its types.
     const tree = (root as unknown as { tree: object }).tree;
     let all = topNodes.get(tree);
-    if (!all) topNodes.set(tree, (all = capture(root, TOP_TYPES, maxDepth)));
+    if (!all) topNodes.set(tree, (all = captureTop(root)));
     let set = typeSets.get(types);
     if (!set) typeSets.set(types, (set = new Set(types)));
     const want = set;
-    found = all.filter((n) => want.has(n.type));
+    found = [];
+    foundTypes = [];
+    for (let i = 0; i < all.nodes.length; i++) {
+      if (want.has(all.types[i]!)) {
+        found.push(all.nodes[i]!);
+        foundTypes.push(all.types[i]!);
+      }
+    }
   } else found = capture(root, types, maxDepth);
   let count = 0;
   // A node whose visit returned false covers the ones that follow it up to its end offset;
@@ -359,6 +433,9 @@ export function walkTypes(root: Node, types: readonly string[], visit: (n: Node)
     if ((++count & 511) === 0 && performance.now() > deadline) throw new ExtractTimeout(`extraction stopped after ${budgetMs} ms`);
     if (n.startIndex < skipEnd) continue; // inside a node whose visit returned false
     if (visit(n) === false) skipEnd = n.endIndex;
+    else if (foundTypes && (foundTypes[i] === "compound_statement" || foundTypes[i] === "function_definition")) {
+      throw new Error(`walkFile: visit must return false for ${foundTypes[i]}`);
+    }
   }
 }
 

@@ -5,13 +5,13 @@
 // the same file are found automatically; others come from the `strip_macros` setting.
 
 import type { Node, Tree } from "../parse/parser.js";
-import { walkTypes } from "./common.js";
+import { walkFile, walkTypes } from "./common.js";
 
 const ATTRIBUTE_LIKE = /^(__attribute__|__declspec|__cdecl|__stdcall|__fastcall|__vectorcall|extern|static|inline|__inline|__forceinline|_Noreturn|__extension__)\b/;
 
 function macroNames(root: Node, extra: readonly string[]): Set<string> {
   const names = new Set(extra);
-  walkTypes(root, ["preproc_def", "function_definition", "compound_statement"], (n) => {
+  walkFile(root, ["preproc_def", "function_definition", "compound_statement"], (n) => {
     if (n.type === "preproc_def") {
       const name = n.childForFieldName("name")?.text;
       const value = n.childForFieldName("value")?.text.trim() ?? "";

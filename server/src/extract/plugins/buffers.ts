@@ -18,7 +18,7 @@ import type { AbiType, CallSite, Expr, FileFacts, FnDecl, Range } from "../../mo
 import type { BufferHint, CBufferFacts, CFnScope, CVar, RustBufferFacts } from "../../model/buffer-facts.js";
 import { parseText } from "../../parse/parser.js";
 import { bodyWalkTypes, cFileExtractors, rustExtractors } from "../hooks.js";
-import { evalConst, indexSubtree, parseIntLit, rangeOf, walk, walkTypes } from "../common.js";
+import { evalConst, indexSubtree, parseIntLit, rangeOf, walk, walkFile, walkTypes } from "../common.js";
 import { applyDeclarator, cScalar, readParams, typeFromSpecifier, type DeclCtx } from "../ctypes.js";
 import { rustType } from "../rust.js";
 
@@ -381,7 +381,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   const ctx: DeclCtx = { file, consts: new Map() };
   const out: CBufferFacts = { fns: [] };
   const classes = new Map<string, Node>();
-  walkTypes(root, ["class_specifier", "struct_specifier", "preproc_def", "enumerator", "compound_statement"], (n) => {
+  walkFile(root, ["class_specifier", "struct_specifier", "preproc_def", "enumerator", "compound_statement"], (n) => {
     if ((n.type === "class_specifier" || n.type === "struct_specifier") && n.childForFieldName("body")) {
       const nm = n.childForFieldName("name")?.text;
       if (nm && !classes.has(nm)) classes.set(nm, n);
@@ -402,7 +402,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   // File-scope variables (`static const float table[64]`), visible in every function.
   const globals: CVar[] = [];
   const gScope = new Scope(globals);
-  walkTypes(root, ["function_definition", "class_specifier", "compound_statement", "declaration"], (n) => {
+  walkFile(root, ["function_definition", "class_specifier", "compound_statement", "declaration"], (n) => {
     if (n.type === "function_definition" || n.type === "class_specifier" || n.type === "compound_statement") return false;
     if (n.type === "declaration") {
       const vs = varsFromDeclaration(n, "global", file, ctx, gScope);
@@ -413,7 +413,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   });
   const fieldCache = new Map<string, CVar[]>();
   const calls: CallSite[] = [];
-  walkTypes(root, ["function_definition"], (n) => {
+  walkFile(root, ["function_definition"], (n) => {
     indexSubtree(n, C_FN_INDEX);
     const fd = fnDeclaratorOf(n);
     const nameNode = fd?.childForFieldName("declarator");
@@ -591,7 +591,7 @@ function collectCHints(facts: FileFacts, nullFix: Map<string, string>): void {
  * in an ERROR node right after the parameter. Returns param position → real name. */
 function nullabilityNames(root: Node): Map<string, string> {
   const out = new Map<string, string>();
-  walkTypes(root, ["compound_statement", "parameter_declaration"], (n) => {
+  walkFile(root, ["compound_statement", "parameter_declaration"], (n) => {
     if (n.type === "compound_statement") return false;
     if (!/\b(_Nullable|_Nonnull|_Null_unspecified|__nullable|__nonnull)\s*$/.test(n.text)) return false;
     const next = n.nextSibling;

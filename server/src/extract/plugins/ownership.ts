@@ -20,7 +20,7 @@ import type { FileFacts, FnDecl, Range } from "../../model/types.js";
 import type {
   CArg, CClass, CEvent, CField, CFlow, COwnFacts, CRef, MemberKind, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl,
 } from "../../model/ownership.js";
-import { indexSubtree, rangeOf, walk, walkTypes } from "../common.js";
+import { indexSubtree, rangeOf, walk, walkFile, walkTypes } from "../common.js";
 import { bodyWalkTypes, cFileExtractors, rustExtractors } from "../hooks.js";
 
 // ---------------------------------------------------------------- Rust
@@ -797,7 +797,7 @@ function extractCFile(root: Node, facts: FileFacts): void {
   const types = new Set(EXPR_TYPES);
   for (const b of root.descendantsOfType("compound_statement")) for (const k of b.namedChildren) types.add(k.type);
   exprTypes = [...types];
-  walkTypes(root, ["class_specifier", "struct_specifier", "function_definition"], (n) => {
+  walkFile(root, ["class_specifier", "struct_specifier", "function_definition"], (n) => {
     if ((n.type === "class_specifier" || n.type === "struct_specifier") && n.childForFieldName("body") && facts.lang === "cpp") {
       const c = extractClass(n, file, flows);
       if (c) classes.push(c);
