@@ -87,7 +87,7 @@ describe("random edits: incremental analysis equals a fresh one", () => {
         }
         engine.dispose();
       }),
-      { seed: 20261202, numRuns: runs },
+      { seed: Number(process.env.FERRULE_FUZZ_SEED ?? 20261202), numRuns: runs },
     );
   }, 120_000);
 });

@@ -20,6 +20,8 @@ import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, CachedItem, FileFacts, ItemCache, Range } from "../model/types.js";
 import { langOf, type Tree } from "../parse/parser.js";
+import type { RustOwnFacts } from "../model/ownership.js";
+import { pairingStems } from "../rules/ownership.js";
 
 export interface Pos {
   line: number;
@@ -120,6 +122,14 @@ function keysOf(f: FileFacts | undefined): { decl: Set<string>; use: Set<string>
     if (fn.name !== fn.symbol) decl.add("s:" + fn.name);
     fn.params.forEach((p) => typeRefs(p.type));
     typeRefs(fn.ret);
+    // what the ownership family relates functions by, beyond their signatures: the name stems
+    // of constructor/releaser pairs and the types a Rust body boxes or unboxes
+    for (const st of pairingStems(fn.symbol)) decl.add("h:" + st);
+    const own = (fn.body as { ownership?: RustOwnFacts } | undefined)?.ownership;
+    if (own) {
+      for (const p of own.produces) if (p.inner) use.add("t:" + normName(p.inner));
+      for (const r of own.releases) if (r.inner) use.add("t:" + normName(r.inner));
+    }
   }
   for (const t of f.types) {
     decl.add("t:" + normName(t.name));
@@ -131,6 +141,17 @@ function keysOf(f: FileFacts | undefined): { decl: Set<string>; use: Set<string>
   for (const c of f.calls) use.add("s:" + c.callee);
   for (const a of f.asserts) use.add("t:" + normName(a.typeName));
   return { decl, use };
+}
+
+/** Whether a Rust file's facts are exactly the facts of its items, in order. */
+function fromItems(f: FileFacts, order: NonNullable<ItemCache["order"]>): boolean {
+  let nf = 0, nt = 0, na = 0;
+  for (const e of order) {
+    for (const x of e.item.fns) if (f.fns[nf++] !== x) return false;
+    for (const x of e.item.types) if (f.types[nt++] !== x) return false;
+    for (const x of e.item.asserts) if (f.asserts[na++] !== x) return false;
+  }
+  return nf === f.fns.length && nt === f.types.length && na === f.asserts.length && !f.defines.length && !f.calls.length;
 }
 
 const itemKeyCache = new WeakMap<CachedItem, { decl: Set<string>; use: Set<string> }>();
@@ -418,13 +439,7 @@ export class Engine {
     if (order && facts?.lang === "rust") {
       // An open Rust document: the union of its items' (cached) names, when its facts are
       // exactly its items' facts.
-      let nf = 0, nt = 0, na = 0;
-      for (const e of order) {
-        nf += e.item.fns.length;
-        nt += e.item.types.length;
-        na += e.item.asserts.length;
-      }
-      if (nf === facts.fns.length && nt === facts.types.length && na === facts.asserts.length && !facts.defines.length && !facts.calls.length) {
+      if (fromItems(facts, order)) {
         k = { decl: new Set(), use: new Set() };
         for (const e of order) {
           const ik = itemKeys(e.item);
@@ -471,7 +486,10 @@ export class Engine {
   } | undefined {
     const after = this.ws.facts(file);
     if (!before || !after || !oldOrder || !newOrder || before.lang !== "rust") return undefined;
-    if (before.hasErrors || after.hasErrors || before.notices.length || after.notices.length) return undefined;
+    if (before.notices.length || after.notices.length) return undefined;
+    // (syntax errors are fine as long as every fact came from an item: the `unsafe extern` block
+    // the grammar reads as an error is taken apart by hand, outside the cache)
+    if (!fromItems(after, newOrder) || !fromItems(before, oldOrder)) return undefined;
     if (before.extra.suppressions || after.extra.suppressions) return undefined;
     const oldItems = new Set(oldOrder.map((e) => e.item));
     const claimed = new Map<CachedItem, CachedItem>(); // old item → the new item reusing it
@@ -498,9 +516,11 @@ export class Engine {
       k.decl.forEach((x) => kDecl.add(x));
       k.use.forEach((x) => kUse.add(x));
     }
+    // (two users of one type are related too: a constructor and a releaser of one handle type;
+    // two callers of one function are not)
     const touches = (k: { decl: Set<string>; use: Set<string> }) => {
       for (const x of k.decl) if (kDecl.has(x) || kUse.has(x)) return true;
-      for (const x of k.use) if (kDecl.has(x)) return true;
+      for (const x of k.use) if (kDecl.has(x) || (kUse.has(x) && x.startsWith("t:"))) return true;
       return false;
     };
     // Items of this file to re-check: the changed ones and those sharing a name with them.
@@ -516,7 +536,10 @@ export class Engine {
         this.decl.get(x)?.forEach((f) => affected.add(f));
         this.use.get(x)?.forEach((f) => affected.add(f));
       }
-      for (const x of k.use) this.decl.get(x)?.forEach((f) => affected.add(f));
+      for (const x of k.use) {
+        this.decl.get(x)?.forEach((f) => affected.add(f));
+        if (x.startsWith("t:")) this.use.get(x)?.forEach((f) => affected.add(f));
+      }
     }
     const inRows = (line: number, items: Iterable<CachedItem>) => { for (const it of items) if (line >= it.first && line <= it.last) return true; return false; };
     for (const f of this.findings) {
@@ -536,7 +559,10 @@ export class Engine {
         this.decl.get(x)?.forEach((g) => context.add(g));
         this.use.get(x)?.forEach((g) => context.add(g));
       }
-      for (const x of k.use) this.decl.get(x)?.forEach((g) => context.add(g));
+      for (const x of k.use) {
+        this.decl.get(x)?.forEach((g) => context.add(g));
+        if (x.startsWith("t:")) this.use.get(x)?.forEach((g) => context.add(g));
+      }
     }
     context.delete(file);
     const model = this.lastModel();
@@ -635,7 +661,10 @@ export class Engine {
         this.decl.get(k)?.forEach((f) => affected.add(f));
         this.use.get(k)?.forEach((f) => affected.add(f));
       }
-      for (const k of [...now.use, ...before.use]) this.decl.get(k)?.forEach((f) => affected.add(f));
+      for (const k of [...now.use, ...before.use]) {
+        this.decl.get(k)?.forEach((f) => affected.add(f));
+        if (k.startsWith("t:")) this.use.get(k)?.forEach((f) => affected.add(f));
+      }
       // Files that include it (types resolve through includes).
       if (model) for (const f of model.includersOf(file)) affected.add(f);
     }
@@ -655,7 +684,10 @@ export class Engine {
         this.decl.get(x)?.forEach((f) => context.add(f));
         this.use.get(x)?.forEach((f) => context.add(f));
       }
-      for (const x of k.use) this.decl.get(x)?.forEach((f) => context.add(f));
+      for (const x of k.use) {
+        this.decl.get(x)?.forEach((f) => context.add(f));
+        if (x.startsWith("t:")) this.use.get(x)?.forEach((f) => context.add(f));
+      }
     }
     // Include closure of the context (the headers its types come from).
     const stack = [...context];

@@ -137,6 +137,15 @@ function stemOf(name: string, re: RegExp): string | undefined {
   return s && s !== name ? s.toLowerCase() : undefined;
 }
 
+/** The name stems by which this family pairs a constructor with its releaser when the handle's
+ * type does not tell (`sonar_det_new` ↔ `sonar_det_free`): the language server's scopes treat
+ * functions sharing one as related. */
+export function pairingStems(symbol: string): string[] {
+  const a = stemOf(symbol, CTOR_SUFFIX);
+  const b = stemOf(symbol, REL_SUFFIX);
+  return a && b && a !== b ? [a, b] : a ? [a] : b ? [b] : [];
+}
+
 const own = (fn: FnDecl): RustOwnFacts | undefined => fn.body?.ownership as RustOwnFacts | undefined;
 
 function isBoundaryExport(fn: FnDecl): boolean {
