@@ -53,8 +53,7 @@ describe("incremental re-analysis equals a fresh analysis", () => {
       engine.open(f, texts.get(f)!, 1);
     }
     engine.analyze();
-    expect(engine.needsSeed).toBe(true);
-    engine.seed(); // as the server does after publishing (open documents read through the item cache)
+    // opened as on disk: the items noted when the file was read are reused, nothing to read again
     expect(engine.needsSeed).toBe(false);
     let version = 1;
     const scopes: string[] = [];
@@ -89,9 +88,50 @@ describe("incremental re-analysis equals a fresh analysis", () => {
       for (const [f, tx] of texts) fresh.update(f, tx);
       expect(res.findings.map(key).sort(), `after ${from} → ${to}`).toEqual(fresh.check().map(key).sort());
     }
+    // a Rust document opened with a text other than the disk's is read through the item cache by
+    // the analysis of the open, and its next edit takes the item-level scope as well
+    const DET = path.join(DEMO, "kernels/src/detector.rs");
+    const det = "// opened with unsaved changes\n" + fs.readFileSync(DET, "utf8");
+    engine.open(DET, det, 1);
+    engine.analyze();
+    expect(engine.needsSeed).toBe(false);
+    const at = det.indexOf("threshold: f32");
+    expect(at).toBeGreaterThan(0);
+    const p0 = det.slice(0, at).split("\n");
+    engine.change(DET, [{ range: { start: { line: p0.length - 1, character: p0[p0.length - 1]!.length }, end: { line: p0.length - 1, character: p0[p0.length - 1]!.length + "threshold: f32".length } }, text: "threshold: f64" }], 2);
+    const r2 = engine.analyze();
+    expect(r2.scope).toBe("items");
+    const fresh = await Workspace.create();
+    fresh.loadAll([DEMO]);
+    for (const [f, tx] of texts) fresh.update(f, tx);
+    fresh.update(DET, det.replace("threshold: f32", "threshold: f64"));
+    expect(r2.findings.map(key).sort()).toEqual(fresh.check().map(key).sort());
     // the Rust edits that change one exported function take the item-level scope
     expect(scopes[1]).toBe("items");
     expect(scopes[3]).toBe("items");
+    engine.dispose();
+  });
+});
+
+describe("documents opened before the workspace was read", () => {
+  test("are read through the item cache by the first analysis; the next edit takes the item-level scope", async () => {
+    const engine = new Engine(await Workspace.create());
+    const text = fs.readFileSync(RS, "utf8");
+    engine.open(RS, text, 1); // the editor sent didOpen before the index was built
+    engine.scan([DEMO]);
+    engine.analyze(true);
+    expect(engine.needsSeed).toBe(false);
+    const at = text.indexOf("n_samples: i64");
+    const p0 = text.slice(0, at).split("\n");
+    const line = p0.length - 1;
+    const ch = p0[line]!.length + "n_samples: ".length;
+    engine.change(RS, [{ range: { start: { line, character: ch }, end: { line, character: ch + 3 } }, text: "i32" }], 2);
+    const res = engine.analyze();
+    expect(res.scope).toBe("items");
+    const fresh = await Workspace.create();
+    fresh.loadAll([DEMO]);
+    fresh.update(RS, text.replace("n_samples: i64", "n_samples: i32"));
+    expect(res.findings.map(key).sort()).toEqual(fresh.check().map(key).sort());
     engine.dispose();
   });
 });

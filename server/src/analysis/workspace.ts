@@ -131,8 +131,13 @@ export class Workspace {
     if (this.entries.delete(file)) this.invalidate();
   }
 
+  /** The SHA-1 of a file's text as last read ("" when it was skipped). */
+  hashOf(file: string): string | undefined {
+    return this.entries.get(file)?.hash;
+  }
+
   /** Reads a file from disk into the workspace; unreadable files become a notice. */
-  load(file: string): void {
+  load(file: string, opts: Omit<ExtractOptions, "maxFileBytes"> = {}): void {
     let text: string;
     try {
       const st = fs.statSync(file);
@@ -145,7 +150,7 @@ export class Workspace {
       this.setFacts(file, skippedFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`));
       return;
     }
-    this.update(file, text);
+    this.update(file, text, opts);
   }
 
   private setFacts(file: string, facts: FileFacts) {

@@ -325,6 +325,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     for (let i = 0; i < kids.length; i++) {
       const n = kids[i]!;
       let key: string | undefined;
+      let span: [number, number] | undefined;
       let mark: [number, number, number, number] | undefined;
       let lead = n;
       if (cache && CACHED_ITEMS.has(n.type)) {
@@ -335,9 +336,10 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
         const from = j >= 0 ? kids[j]!.endIndex : container.startIndex;
         // (a slice, not a concatenation: a slice shares the text's memory; the column is
         // compared on a hit)
-        key = text!.slice(from, n.endIndex);
+        span = [from, n.endIndex];
+        key = cache.spansOnly ? "" : text!.slice(from, n.endIndex);
         const pos = n.startPosition;
-        let hit = cache.prev.get(key) ?? cache.next.get(key);
+        let hit = cache.spansOnly ? undefined : cache.prev.get(key) ?? cache.next.get(key);
         if (hit && hit.col !== pos.column) hit = undefined;
         if (hit) {
           const row = pos.row;
@@ -415,7 +417,10 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           fns: facts.fns.slice(mark[0]), types: facts.types.slice(mark[1]), asserts: facts.asserts.slice(mark[2]),
         };
         // (an item whose reading left a notice is read again next time)
-        if (facts.notices.length === mark[3]) cache!.next.set(key, item);
+        if (facts.notices.length === mark[3]) {
+          if (cache!.spansOnly) item.span = span;
+          else cache!.next.set(key, item);
+        }
         cache!.order!.push({ item });
       }
     }

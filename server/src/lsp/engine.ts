@@ -13,6 +13,7 @@
 
 import * as fs from "node:fs";
 import * as path from "node:path";
+import { createHash } from "node:crypto";
 import { Workspace, listSources } from "../analysis/workspace.js";
 import type { FerruleConfig } from "../analysis/config.js";
 import type { Finding } from "../rules/api.js";
@@ -188,6 +189,8 @@ export class Engine {
   private decl = new Map<string, Set<string>>(); // key → files declaring it
   private use = new Map<string, Set<string>>(); // key → files using it
   private fileKeys = new Map<string, { decl: Set<string>; use: Set<string> }>();
+  /** Rust files as last read from disk: their text's hash and items (with key offsets). */
+  private diskItems = new Map<string, { hash: string; consts?: string; order: ItemCache["order"] }>();
   private fullModel: Model | undefined;
   /** The last whole-workspace model (include graph for scoping; may lag one edit behind). */
   private linkModel: Model | undefined;
@@ -207,7 +210,7 @@ export class Engine {
     this.ws.walkNotices.length = 0;
     this.ws.walkNotices.push(...walk.notices);
     walk.files.forEach((f, i) => {
-      if (!this.docs.has(f)) this.ws.load(f);
+      if (!this.docs.has(f)) this.loadFile(f);
       this.reindex(f);
       if (onProgress && i % 25 === 0) onProgress(i, walk.files.length);
     });
@@ -226,15 +229,38 @@ export class Engine {
     this.decl.clear();
     this.use.clear();
     this.fileKeys.clear();
+    this.diskItems.clear();
     this.fullModel = this.linkModel = undefined;
     this.findings = [];
     this.needFull = true;
+  }
+
+  /** Reads a file from disk; for Rust, notes where its items are, so that opening it unchanged
+   * can reuse them (see open). */
+  private loadFile(file: string): void {
+    if (langOf(file) !== "rust") {
+      this.ws.load(file);
+      return;
+    }
+    const itemCache: ItemCache = { prev: new Map(), next: new Map(), spansOnly: true };
+    this.ws.load(file, { itemCache });
+    const hash = this.ws.hashOf(file);
+    if (itemCache.order && hash) this.diskItems.set(file, { hash, consts: itemCache.consts, order: itemCache.order });
+    else if (itemCache.order || !hash) this.diskItems.delete(file);
   }
 
   open(file: string, text: string, version: number): void {
     const old = this.docs.get(file);
     old?.tree?.delete();
     const d: OpenDoc = { file, version, text, lineStarts: computeLineStarts(text) };
+    // Opened as it is on disk: its items' keys come from the text and the offsets noted when the
+    // file was read, so the first edit already re-reads only the items it changes.
+    const disk = this.diskItems.get(file);
+    if (disk && disk.hash === this.ws.hashOf(file) && disk.hash === createHash("sha1").update(text).digest("hex")) {
+      const prev = new Map<string, CachedItem>();
+      for (const e of disk.order!) if (e.item.span) prev.set(text.slice(e.item.span[0], e.item.span[1]), e.item);
+      d.items = { prev, next: new Map(), consts: disk.consts, order: disk.order };
+    }
     this.docs.set(file, d);
     this.syncDoc(d);
   }
@@ -281,9 +307,10 @@ export class Engine {
   }
 
   /**
-   * Reads open Rust documents that were opened unchanged (their facts came from disk) through the
-   * item cache, without re-checking anything (their facts do not change), so that the first edit
-   * can tell which items it changed. The server calls it after publishing, off the edit path.
+   * Reads open Rust documents whose facts did not come through the item cache (rare: a document
+   * opened with the text of facts read without noting items) through it, without re-checking
+   * anything (their facts do not change), so that the first edit can tell which items it changed.
+   * The server calls it after publishing, off the edit path.
    */
   seed(): void {
     for (const d of this.docs.values()) {
@@ -307,7 +334,7 @@ export class Engine {
     this.docs.delete(file);
     // back to the disk version
     if (fs.existsSync(file)) {
-      this.ws.load(file);
+      this.loadFile(file);
       this.reindex(file);
       this.dirty.add(file);
     } else this.fileRemoved(file);
@@ -321,7 +348,7 @@ export class Engine {
       return;
     }
     if (this.ws.config.exclude.length && !listSources([file], this.ws.config.exclude).files.length) return;
-    this.ws.load(file);
+    this.loadFile(file);
     this.dirty.add(file);
   }
 

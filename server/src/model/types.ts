@@ -232,6 +232,8 @@ export interface CachedItem {
   /** Rows the item spans, from its first attribute or doc comment to its last line. */
   first: number;
   last: number;
+  /** With `spansOnly`: where the item's key text lies in the file's text (start, end offsets). */
+  span?: [number, number];
   fns: FnDecl[];
   types: TypeDecl[];
   asserts: SourceAssert[];
@@ -249,6 +251,10 @@ export interface ItemCache {
   next: Map<string, CachedItem>;
   /** The file's integer consts the entries of `prev` were made with (set by extraction). */
   consts?: string;
+  /** Record each item's key as offsets (`CachedItem.span`) instead of keeping text: for files
+   * read from disk, whose text is not kept; a caller that later has the same text builds the
+   * keys from it (see Engine.open). Nothing is reused in this mode. */
+  spansOnly?: boolean;
   /** Filled by extraction: every item read, in order, with the previous extraction's item it
    * reused (same object when it did not move), so a caller can tell what changed. */
   order?: { item: CachedItem; from?: CachedItem }[];
