@@ -557,17 +557,7 @@ export class Engine {
     for (const [o, n] of claimed) if (dirtyItems.has(n)) dirtyOld.add(o);
     // Other files whose findings can change: those that declare or use a name of a re-checked item.
     const affected = new Set<string>();
-    for (const it of [...dirtyItems].concat(dropped)) {
-      const k = itemKeys(it);
-      for (const x of k.decl) {
-        this.decl.get(x)?.forEach((f) => affected.add(f));
-        this.use.get(x)?.forEach((f) => affected.add(f));
-      }
-      for (const x of k.use) {
-        this.decl.get(x)?.forEach((f) => affected.add(f));
-        if (x.startsWith("t:")) this.use.get(x)?.forEach((f) => affected.add(f));
-      }
-    }
+    for (const it of [...dirtyItems].concat(dropped)) this.relatedTo(itemKeys(it), affected);
     const inRows = (line: number, items: Iterable<CachedItem>) => { for (const it of items) if (line >= it.first && line <= it.last) return true; return false; };
     for (const f of this.findings) {
       const here = (f.range.file === file && inRows(f.range.line, dirtyOld)) || f.related.some((r) => r.range.file === file && inRows(r.range.line, dirtyOld));
@@ -581,31 +571,10 @@ export class Engine {
     const context = new Set<string>(affected);
     for (const f of affected) {
       const k = this.fileKeys.get(f);
-      if (!k) continue;
-      for (const x of k.decl) {
-        this.decl.get(x)?.forEach((g) => context.add(g));
-        this.use.get(x)?.forEach((g) => context.add(g));
-      }
-      for (const x of k.use) {
-        this.decl.get(x)?.forEach((g) => context.add(g));
-        if (x.startsWith("t:")) this.use.get(x)?.forEach((g) => context.add(g));
-      }
+      if (k) this.relatedTo(k, context);
     }
     context.delete(file);
-    const model = this.lastModel();
-    const stack = [...context];
-    while (stack.length) {
-      const f = stack.pop()!;
-      for (const inc of this.ws.facts(f)?.includes ?? []) {
-        if (inc.system) continue;
-        const r = model?.includeTarget(inc) ?? model?.resolveInclude(f, inc.path);
-        if (r && r !== file && !context.has(r) && this.ws.has(r)) {
-          context.add(r);
-          stack.push(r);
-        }
-      }
-    }
-    for (const f of [...context]) if (!this.ws.has(f)) context.delete(f);
+    this.withIncludes(context, file);
     // This file as the rules see it: the re-checked items, the items other context files link
     // to, and every helper (body rules follow calls into them).
     const ctxKeys = new Set<string>();
@@ -674,6 +643,41 @@ export class Engine {
     return { affected, context: new Set([...context, file]), partial, dirty: rows(dirtyItems), dirtyBefore: rows(dirtyOld), shift };
   }
 
+  /**
+   * Adds the files related to these names: the declarers and users of what they declare, the
+   * declarers of what they use, and the other users of a type they use (a constructor and a
+   * releaser of one handle type; two callers of one function are not related).
+   */
+  private relatedTo(k: { decl: Set<string>; use: Set<string> }, into: Set<string>): void {
+    for (const x of k.decl) {
+      this.decl.get(x)?.forEach((f) => into.add(f));
+      this.use.get(x)?.forEach((f) => into.add(f));
+    }
+    for (const x of k.use) {
+      this.decl.get(x)?.forEach((f) => into.add(f));
+      if (x.startsWith("t:")) this.use.get(x)?.forEach((f) => into.add(f));
+    }
+  }
+
+  /** Adds the workspace headers the files include (transitively; types resolve through them),
+   * except `skip`, and drops files the workspace no longer has. */
+  private withIncludes(context: Set<string>, skip?: string): void {
+    const model = this.lastModel();
+    const stack = [...context];
+    while (stack.length) {
+      const f = stack.pop()!;
+      for (const inc of this.ws.facts(f)?.includes ?? []) {
+        if (inc.system) continue;
+        const r = model?.includeTarget(inc) ?? model?.resolveInclude(f, inc.path);
+        if (r && r !== skip && !context.has(r) && this.ws.has(r)) {
+          context.add(r);
+          stack.push(r);
+        }
+      }
+    }
+    for (const f of [...context]) if (!this.ws.has(f)) context.delete(f);
+  }
+
   /** Which files' findings an edit can change (affected) and which files the rules need to see
    * to recompute them (context). */
   scopeOf(changed: string[], oldKeys: Map<string, { decl: Set<string>; use: Set<string> }>): { affected: Set<string>; context: Set<string> } {
@@ -682,16 +686,8 @@ export class Engine {
     for (const file of changed) {
       const now = this.fileKeys.get(file) ?? { decl: new Set<string>(), use: new Set<string>() };
       const before = oldKeys.get(file) ?? { decl: new Set<string>(), use: new Set<string>() };
-      // Everything that declares or uses what this file declares (before or after the edit),
-      // and the declarers of what it uses (their "no user"/pairing findings can change too).
-      for (const k of [...now.decl, ...before.decl]) {
-        this.decl.get(k)?.forEach((f) => affected.add(f));
-        this.use.get(k)?.forEach((f) => affected.add(f));
-      }
-      for (const k of [...now.use, ...before.use]) {
-        this.decl.get(k)?.forEach((f) => affected.add(f));
-        if (k.startsWith("t:")) this.use.get(k)?.forEach((f) => affected.add(f));
-      }
+      // Everything related to what this file declares or uses, before or after the edit.
+      this.relatedTo({ decl: new Set([...now.decl, ...before.decl]), use: new Set([...now.use, ...before.use]) }, affected);
       // Files that include it (types resolve through includes).
       if (model) for (const f of model.includersOf(file)) affected.add(f);
     }
@@ -706,32 +702,9 @@ export class Engine {
     const context = new Set<string>(affected);
     for (const file of affected) {
       const k = this.fileKeys.get(file);
-      if (!k) continue;
-      for (const x of k.decl) {
-        this.decl.get(x)?.forEach((f) => context.add(f));
-        this.use.get(x)?.forEach((f) => context.add(f));
-      }
-      for (const x of k.use) {
-        this.decl.get(x)?.forEach((f) => context.add(f));
-        if (x.startsWith("t:")) this.use.get(x)?.forEach((f) => context.add(f));
-      }
+      if (k) this.relatedTo(k, context);
     }
-    // Include closure of the context (the headers its types come from).
-    const stack = [...context];
-    while (stack.length) {
-      const file = stack.pop()!;
-      const facts = this.ws.facts(file);
-      if (!facts) continue;
-      for (const inc of facts.includes) {
-        if (inc.system) continue;
-        const r = model?.includeTarget(inc) ?? model?.resolveInclude(file, inc.path);
-        if (r && !context.has(r) && this.ws.has(r)) {
-          context.add(r);
-          stack.push(r);
-        }
-      }
-    }
-    for (const f of [...context]) if (!this.ws.has(f)) context.delete(f);
+    this.withIncludes(context);
     return { affected, context };
   }
 
