@@ -464,13 +464,14 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     fn.isExtern = abi !== undefined;
     fn.isPub = n.namedChildren.some((c) => c.type === "visibility_modifier");
     fn.generic = !!n.childForFieldName("type_parameters") || hasSelf;
+    // Only functions that take part in the C ABI are boundary items; others are kept (not
+    // exported) so body rules can follow helper calls inside the crate. (Known before the body is
+    // read: body extractors may read less of a helper.)
+    if (!exported && abi === undefined) (fn as FnDecl & { internal?: boolean }).internal = true;
     if (n.childForFieldName("body")) {
       fn.body = {};
       for (const x of rustExtractors.fnBody) x(n, fn, facts);
     }
-    // Only functions that take part in the C ABI are boundary items; others are kept (not
-    // exported) so body rules can follow helper calls inside the crate.
-    if (!exported && abi === undefined) (fn as FnDecl & { internal?: boolean }).internal = true;
     facts.fns.push(fn);
   };
 

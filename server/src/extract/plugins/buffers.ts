@@ -920,6 +920,10 @@ function extractRustBody(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
 }
 
 rustExtractors.fnBody.push((fnNode, fn, facts) => {
+  // The family reads a Rust body only as the Rust side of a boundary symbol (contractOf, through
+  // the model's symbol groups, which leave helpers out): a helper's buffer facts would never be
+  // read (measured: ~7 % of all fact objects of the generated workspaces).
+  if ((fn as { internal?: boolean }).internal) return;
   try {
     extractRustBody(fnNode, fn, facts);
   } catch (e) {
