@@ -13,7 +13,10 @@ import type { Finding } from "../../server/src/rules/api.js";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
 const DEMO = path.join(ROOT, "test-fixtures/sonar-demo");
-const FILES = ["kernels/src/lib.rs", "kernels/src/detector.rs"].map((f) => path.join(DEMO, f));
+// two Rust files (item-level scope) and the header they are declared in (file-level scope,
+// narrowed for the open Rust documents that link to it)
+const FILES = ["kernels/src/lib.rs", "kernels/src/detector.rs", "include/sonar_kernels.h"].map((f) => path.join(DEMO, f));
+const C_TOKENS = ["float", "double", "size_t", "long", "int", "uint32_t", "int64_t"];
 const key = (f: Finding) => `${f.rule}|${path.relative(DEMO, f.range.file)}|${f.range.line}:${f.range.col}-${f.range.endLine}:${f.range.endCol}|${f.message}|${f.related.map((r) => `${path.relative(DEMO, r.range.file)}:${r.range.line}`).join(",")}`;
 
 const TOKENS = ["usize", "u32", "i64", "i32", "f32", "f64", "*mut", "*const", "c_int", "u8", "u16"];
@@ -23,11 +26,21 @@ const editArb = fc.record({
   op: fc.constantFrom("newline", "delete-line", "retype", "retype", "retype", "duplicate-line", "blank-fn"),
   at: fc.integer({ min: 0, max: 9999 }).map((n) => n / 10000),
   token: fc.constantFrom(...TOKENS),
-  file: fc.constantFrom(0, 1),
+  file: fc.constantFrom(0, 1, 2),
 });
 
 /** Applies an edit to a text; returns the replaced range [start, end) and the new text there. */
-function plan(text: string, e: { op: string; at: number; token: string }): { start: number; end: number; insert: string } {
+function plan(text: string, e: { op: string; at: number; token: string }, c = false): { start: number; end: number; insert: string } {
+  if (c && (e.op === "retype" || e.op === "blank-fn")) {
+    // a C type in a declaration (after `(`, `, ` or `const `) becomes another
+    const found: [number, string][] = [];
+    const typePos = (i: number) => text[i - 1] === "(" || [", ", "t "].includes(text.slice(i - 2, i));
+    for (const t of C_TOKENS) for (let i = text.indexOf(t); i >= 0; i = text.indexOf(t, i + 1)) if (typePos(i)) found.push([i, t]);
+    found.sort((a, b) => a[0] - b[0]);
+    if (!found.length) return { start: 0, end: 0, insert: "" };
+    const [s, t] = found[Math.min(found.length - 1, Math.floor(e.at * found.length))]!;
+    return { start: s, end: s + t.length, insert: C_TOKENS[(e.token.length + Math.floor(e.at * 97)) % C_TOKENS.length]! };
+  }
   const lines = text.split("\n");
   const li = Math.min(lines.length - 1, Math.floor(e.at * lines.length));
   const lineStart = lines.slice(0, li).reduce((n, l) => n + l.length + 1, 0);
@@ -76,7 +89,7 @@ describe("random edits: incremental analysis equals a fresh one", () => {
         let version = 1;
         for (const e of edits) {
           const t = texts[e.file]!;
-          const { start, end, insert } = plan(t, e);
+          const { start, end, insert } = plan(t, e, FILES[e.file]!.endsWith(".h"));
           engine.change(FILES[e.file]!, [{ range: { start: posAt(t, start), end: posAt(t, end) }, text: insert }], ++version);
           texts[e.file] = t.slice(0, start) + insert + t.slice(end);
           const res = engine.analyze();

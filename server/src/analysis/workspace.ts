@@ -206,7 +206,13 @@ export class Workspace {
       const e = replace?.get(f) ?? this.entries.get(f)?.facts;
       if (e) facts.push(e);
     }
-    const model = new Model(facts, { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families });
+    const sides = { rust: false, c: false };
+    for (const e of this.entries.values()) {
+      if (e.facts.lang === "rust") sides.rust = true;
+      else sides.c = true;
+      if (sides.rust && sides.c) break;
+    }
+    const model = new Model(facts, { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families, workspaceSides: sides });
     return { findings: this.finish(runRules(model), model), model };
   }
 

@@ -155,6 +155,14 @@ function fromItems(f: FileFacts, order: NonNullable<ItemCache["order"]>): boolea
   return nf === f.fns.length && nt === f.types.length && na === f.asserts.length && !f.defines.length && !f.calls.length;
 }
 
+/** Whether names relate (as Engine.relatedTo relates files): a name one declares and the other
+ * declares or uses, or a type both use. */
+function touchesKeys(k: { decl: Set<string>; use: Set<string> }, K: { decl: Set<string>; use: Set<string> }): boolean {
+  for (const x of k.decl) if (K.decl.has(x) || K.use.has(x)) return true;
+  for (const x of k.use) if (K.decl.has(x) || (K.use.has(x) && x.startsWith("t:"))) return true;
+  return false;
+}
+
 const itemKeyCache = new WeakMap<CachedItem, { decl: Set<string>; use: Set<string> }>();
 
 /** Names one Rust item declares and uses (as keysOf for a file). */
@@ -434,6 +442,23 @@ export class Engine {
     }
     if (!full) {
       const { affected, context } = this.scopeOf(changed, oldKeys);
+      const narrow = this.partnerScope(changed, oldKeys, affected);
+      if (narrow && narrow.context.size <= Math.max(40, this.fileKeys.size * 0.4)) {
+        this.lastContext = narrow.context.size;
+        const { findings } = this.ws.checkSubset(narrow.context, narrow.replace);
+        const inDirty = (x: Finding) => {
+          const dirty = narrow.partial.get(x.range.file);
+          if (!dirty) return false;
+          for (const it of dirty) if (x.range.line >= it.first && x.range.line <= it.last) return true;
+          return false;
+        };
+        const keep = this.findings.filter((x) => !narrow.full.has(x.range.file) && !inDirty(x));
+        const fresh = findings.filter((x) => narrow.full.has(x.range.file) || inDirty(x));
+        this.findings = sortFindings([...keep, ...fresh]);
+        this.fullModel = undefined;
+        this.needFull = false;
+        return { findings: this.findings, affected, changed, scope: "scoped", ms: performance.now() - t0, context: narrow.context.size };
+      }
       this.lastContext = context.size;
       if (context.size <= Math.max(40, this.fileKeys.size * 0.4)) {
         const { findings } = this.ws.checkSubset(context);
@@ -543,13 +568,7 @@ export class Engine {
       k.decl.forEach((x) => kDecl.add(x));
       k.use.forEach((x) => kUse.add(x));
     }
-    // (two users of one type are related too: a constructor and a releaser of one handle type;
-    // two callers of one function are not)
-    const touches = (k: { decl: Set<string>; use: Set<string> }) => {
-      for (const x of k.decl) if (kDecl.has(x) || kUse.has(x)) return true;
-      for (const x of k.use) if (kDecl.has(x) || (kUse.has(x) && x.startsWith("t:"))) return true;
-      return false;
-    };
+    const touches = (k: { decl: Set<string>; use: Set<string> }) => touchesKeys(k, { decl: kDecl, use: kUse });
     // Items of this file to re-check: the changed ones and those sharing a name with them.
     const dirtyItems = new Set<CachedItem>(fresh);
     for (const e of newOrder) if (touches(itemKeys(e.item))) dirtyItems.add(e.item);
@@ -575,48 +594,7 @@ export class Engine {
     }
     context.delete(file);
     this.withIncludes(context, file);
-    // This file as the rules see it: the re-checked items, the items other context files link
-    // to, and every helper (body rules follow calls into them).
-    const ctxKeys = new Set<string>();
-    for (const f of context) {
-      const k = this.fileKeys.get(f);
-      k?.decl.forEach((x) => ctxKeys.add(x));
-      k?.use.forEach((x) => ctxKeys.add(x));
-    }
-    const chosen = new Set<CachedItem>();
-    const wanted = new Set<string>(); // names the chosen items use
-    const choose = (it: CachedItem) => {
-      if (chosen.has(it)) return false;
-      chosen.add(it);
-      itemKeys(it).use.forEach((x) => wanted.add(x));
-      return true;
-    };
-    const anyIn = (xs: Set<string>, set: Set<string>) => {
-      for (const x of xs) if (set.has(x)) return true;
-      return false;
-    };
-    for (const e of newOrder) {
-      const it = e.item;
-      const k = itemKeys(it);
-      if (dirtyItems.has(it) || !k.decl.size || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
-    }
-    // …and the types those use, declared in this file (to a fixpoint) or in other files.
-    for (let grew = true; grew;) {
-      grew = false;
-      for (const e of newOrder) if (!chosen.has(e.item) && anyIn(itemKeys(e.item).decl, wanted)) grew = choose(e.item) || grew;
-    }
-    for (const x of wanted) {
-      this.decl.get(x)?.forEach((f) => {
-        if (f !== file && this.ws.has(f)) context.add(f);
-      });
-    }
-    const partial: FileFacts = { ...after, fns: [], types: [], asserts: [] };
-    for (const e of newOrder) {
-      if (!chosen.has(e.item)) continue;
-      partial.fns.push(...e.item.fns);
-      partial.types.push(...e.item.types);
-      partial.asserts.push(...e.item.asserts);
-    }
+    const partial = this.partialOf(file, after, newOrder, dirtyItems, context);
     // Earlier findings in this file (or pointing into it) move with their items.
     const moves: [number, number, number][] = [];
     let moved = false;
@@ -676,6 +654,113 @@ export class Engine {
       }
     }
     for (const f of [...context]) if (!this.ws.has(f)) context.delete(f);
+  }
+
+  /**
+   * A Rust file as a sub-model sees it: the re-checked items (`dirty`), the items the context's
+   * other files link to, every helper (body rules follow calls into them), and the types those
+   * use, declared in this file (to a fixpoint) — whose declarers in other files join `context`.
+   */
+  private partialOf(file: string, facts: FileFacts, order: NonNullable<ItemCache["order"]>, dirty: Set<CachedItem>, context: Set<string>): FileFacts {
+    const ctxKeys = new Set<string>();
+    for (const f of context) {
+      if (f === file) continue;
+      const k = this.fileKeys.get(f);
+      k?.decl.forEach((x) => ctxKeys.add(x));
+      k?.use.forEach((x) => ctxKeys.add(x));
+    }
+    const chosen = new Set<CachedItem>();
+    const wanted = new Set<string>(); // names the chosen items use
+    const choose = (it: CachedItem) => {
+      if (chosen.has(it)) return false;
+      chosen.add(it);
+      itemKeys(it).use.forEach((x) => wanted.add(x));
+      return true;
+    };
+    const anyIn = (xs: Set<string>, set: Set<string>) => {
+      for (const x of xs) if (set.has(x)) return true;
+      return false;
+    };
+    for (const e of order) {
+      const it = e.item;
+      const k = itemKeys(it);
+      if (dirty.has(it) || !k.decl.size || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
+    }
+    for (let grew = true; grew;) {
+      grew = false;
+      for (const e of order) if (!chosen.has(e.item) && anyIn(itemKeys(e.item).decl, wanted)) grew = choose(e.item) || grew;
+    }
+    for (const x of wanted) {
+      this.decl.get(x)?.forEach((f) => {
+        if (f !== file && this.ws.has(f)) context.add(f);
+      });
+    }
+    const partial: FileFacts = { ...facts, fns: [], types: [], asserts: [] };
+    for (const e of order) {
+      if (!chosen.has(e.item)) continue;
+      partial.fns.push(...e.item.fns);
+      partial.types.push(...e.item.types);
+      partial.asserts.push(...e.item.asserts);
+    }
+    return partial;
+  }
+
+  /**
+   * The file-level scope, narrowed for open Rust documents it would re-check only because they
+   * link to the edited file (a header, say): of those, only the items sharing a name with the
+   * edited file (or holding a finding that points into it) are re-checked, with what links to
+   * them; their other findings stand (the document did not change, nothing moved). Undefined
+   * when no such document is in scope.
+   */
+  private partnerScope(changed: string[], oldKeys: Map<string, { decl: Set<string>; use: Set<string> }>, affected: Set<string>): {
+    full: Set<string>; partial: Map<string, Set<CachedItem>>; context: Set<string>; replace: Map<string, FileFacts>;
+  } | undefined {
+    const changedSet = new Set(changed);
+    const K = { decl: new Set<string>(), use: new Set<string>() };
+    for (const f of changed) {
+      for (const k of [this.fileKeys.get(f), oldKeys.get(f)]) {
+        k?.decl.forEach((x) => K.decl.add(x));
+        k?.use.forEach((x) => K.use.add(x));
+      }
+    }
+    const partial = new Map<string, Set<CachedItem>>();
+    const orders = new Map<string, NonNullable<ItemCache["order"]>>();
+    for (const r of affected) {
+      if (changedSet.has(r)) continue;
+      const order = this.docs.get(r)?.items?.order;
+      const facts = this.ws.facts(r);
+      if (!order || !facts || facts.lang !== "rust" || facts.notices.length || facts.extra.suppressions || !fromItems(facts, order)) continue;
+      const dirty = new Set<CachedItem>();
+      for (const e of order) if (touchesKeys(itemKeys(e.item), K)) dirty.add(e.item);
+      let ok = true;
+      for (const f of this.findings) {
+        if (f.range.file !== r) continue;
+        const it = order.find((e) => f.range.line >= e.item.first && f.range.line <= e.item.last)?.item;
+        if (!it) {
+          ok = false; // a finding outside every item: cannot tell whether it stands
+          break;
+        }
+        if (f.related.some((x) => changedSet.has(x.range.file))) dirty.add(it);
+      }
+      if (ok) {
+        partial.set(r, dirty);
+        orders.set(r, order);
+      }
+    }
+    if (!partial.size) return undefined;
+    const full = new Set([...affected].filter((f) => !partial.has(f)));
+    const context = new Set<string>(full);
+    for (const f of full) {
+      const k = this.fileKeys.get(f);
+      if (k) this.relatedTo(k, context);
+    }
+    for (const dirty of partial.values()) for (const it of dirty) this.relatedTo(itemKeys(it), context);
+    for (const r of partial.keys()) context.delete(r);
+    this.withIncludes(context);
+    const replace = new Map<string, FileFacts>();
+    for (const [r, dirty] of partial) replace.set(r, this.partialOf(r, this.ws.facts(r)!, orders.get(r)!, dirty, context));
+    for (const r of partial.keys()) context.add(r);
+    return { full, partial, context, replace };
   }
 
   /** Which files' findings an edit can change (affected) and which files the rules need to see

@@ -13,6 +13,9 @@ export interface ModelConfig {
   includePaths: string[];
   /** Extra settings for rule families (port patterns etc.), by family name. */
   families: Record<string, unknown>;
+  /** For a model of part of a workspace (the language server's scoped re-checks): which sides
+   * the whole workspace has, so rules that ask "is there any C at all" answer for the workspace. */
+  workspaceSides?: Record<Side, boolean>;
 }
 
 export const DEFAULT_CONFIG: ModelConfig = { targets: [...ALL_TRIPLES], includePaths: [], families: {} };
@@ -72,6 +75,14 @@ export class Model {
         }
       }
     }
+  }
+
+  /** Whether the workspace has any file of this side (see ModelConfig.workspaceSides). */
+  hasSide(side: Side): boolean {
+    const w = this.config.workspaceSides?.[side];
+    if (w !== undefined) return w;
+    for (const f of this.files.values()) if ((f.lang === "rust") === (side === "rust")) return true;
+    return false;
   }
 
   /** The workspace file an include of this model's facts resolved to. */

@@ -35,8 +35,8 @@ export const symbolsFamily: RuleFamily = {
   rules: [NO_C_DECLARATION, NO_DEFINITION, EXPORT_NOT_UNMANGLED, DUPLICATE_SYMBOL],
   check(model: Model): Finding[] {
     const out: Finding[] = [];
-    const hasRust = [...model.files.values()].some((f) => f.lang === "rust");
-    const hasC = [...model.files.values()].some((f) => f.lang !== "rust");
+    const hasRust = model.hasSide("rust");
+    const hasC = model.hasSide("c");
     for (const g of model.symbols.values()) {
       const exports = g.rust.filter((f) => f.role === "export");
       const imports = g.rust.filter((f) => f.role === "import");
