@@ -15,17 +15,20 @@ import * as os from "node:os";
 import * as path from "node:path";
 import type { Triple } from "../../server/src/model/targets";
 
-const NO_CORE = `#![feature(no_core, lang_items, auto_traits, intrinsics, rustc_attrs, builtin_syntax)]
-#![no_core]
-#![allow(internal_features, non_camel_case_types, dead_code)]
-#[lang = "pointee_sized"] pub trait PointeeSized {}
+/** The lang items every `#![no_core]` probe crate needs (also used by tests/oracles/compilers.ts). */
+export const NO_CORE_LANG_ITEMS = `#[lang = "pointee_sized"] pub trait PointeeSized {}
 #[lang = "meta_sized"] pub trait MetaSized: PointeeSized {}
 #[lang = "sized"] pub trait Sized: MetaSized {}
 #[lang = "sync"] pub unsafe auto trait Sync {}
 #[lang = "freeze"] pub unsafe auto trait Freeze {}
 #[lang = "copy"] pub trait Copy {}
 #[lang = "drop_in_place"] pub unsafe fn drop_in_place<T: PointeeSized>(_p: *mut T) {}
-#[rustc_intrinsic] pub const fn size_of<T>() -> usize;
+`;
+
+const NO_CORE = `#![feature(no_core, lang_items, auto_traits, intrinsics, rustc_attrs, builtin_syntax)]
+#![no_core]
+#![allow(internal_features, non_camel_case_types, dead_code)]
+${NO_CORE_LANG_ITEMS}#[rustc_intrinsic] pub const fn size_of<T>() -> usize;
 #[rustc_intrinsic] pub const fn align_of<T>() -> usize;
 #[rustc_intrinsic] #[lang = "offset_of"] pub const fn offset_of<T: PointeeSized>(variant: u32, field: u32) -> usize;
 impl Copy for u8 {} impl Copy for i8 {} impl Copy for u16 {} impl Copy for i16 {} impl Copy for u32 {}

@@ -21,6 +21,7 @@ import * as fs from "node:fs";
 import * as os from "node:os";
 import * as path from "node:path";
 import type { Triple } from "../../server/src/model/targets";
+import { NO_CORE_LANG_ITEMS } from "../helpers/rust-cross";
 
 export type { Triple };
 
@@ -381,12 +382,5 @@ export function rustLayoutCross(triple: Triple, prims: readonly RustPrim[]): Lay
 const NO_CORE_PRELUDE = `#![feature(no_core, lang_items, auto_traits)]
 #![no_core]
 #![allow(internal_features, non_camel_case_types)]
-#[lang = "pointee_sized"] pub trait PointeeSized {}
-#[lang = "meta_sized"] pub trait MetaSized: PointeeSized {}
-#[lang = "sized"] pub trait Sized: MetaSized {}
-#[lang = "sync"] pub unsafe auto trait Sync {}
-#[lang = "freeze"] pub unsafe auto trait Freeze {}
-#[lang = "copy"] pub trait Copy {}
-#[lang = "drop_in_place"] pub unsafe fn drop_in_place<T: PointeeSized>(_p: *mut T) {}
-#[repr(C)] pub struct W<T>(u8, T);
+${NO_CORE_LANG_ITEMS}#[repr(C)] pub struct W<T>(u8, T);
 `;
