@@ -163,6 +163,12 @@ function touchesKeys(k: { decl: Set<string>; use: Set<string> }, K: { decl: Set<
   return false;
 }
 
+/** The item whose rows (attributes and doc comments included) hold this line. */
+function itemAt(line: number, items: Iterable<CachedItem>): CachedItem | undefined {
+  for (const it of items) if (line >= it.first && line <= it.last) return it;
+  return undefined;
+}
+
 const itemKeyCache = new WeakMap<CachedItem, { decl: Set<string>; use: Set<string> }>();
 
 /** Names one Rust item declares and uses (as keysOf for a file). */
@@ -448,9 +454,7 @@ export class Engine {
         const { findings } = this.ws.checkSubset(narrow.context, narrow.replace);
         const inDirty = (x: Finding) => {
           const dirty = narrow.partial.get(x.range.file);
-          if (!dirty) return false;
-          for (const it of dirty) if (x.range.line >= it.first && x.range.line <= it.last) return true;
-          return false;
+          return !!dirty && !!itemAt(x.range.line, dirty);
         };
         const keep = this.findings.filter((x) => !narrow.full.has(x.range.file) && !inDirty(x));
         const fresh = findings.filter((x) => narrow.full.has(x.range.file) || inDirty(x));
@@ -577,7 +581,7 @@ export class Engine {
     // Other files whose findings can change: those that declare or use a name of a re-checked item.
     const affected = new Set<string>();
     for (const it of [...dirtyItems].concat(dropped)) this.relatedTo(itemKeys(it), affected);
-    const inRows = (line: number, items: Iterable<CachedItem>) => { for (const it of items) if (line >= it.first && line <= it.last) return true; return false; };
+    const inRows = (line: number, items: Iterable<CachedItem>) => !!itemAt(line, items);
     for (const f of this.findings) {
       const here = (f.range.file === file && inRows(f.range.line, dirtyOld)) || f.related.some((r) => r.range.file === file && inRows(r.range.line, dirtyOld));
       if (here) {
@@ -733,9 +737,10 @@ export class Engine {
       const dirty = new Set<CachedItem>();
       for (const e of order) if (touchesKeys(itemKeys(e.item), K)) dirty.add(e.item);
       let ok = true;
+      const items = order.map((e) => e.item);
       for (const f of this.findings) {
         if (f.range.file !== r) continue;
-        const it = order.find((e) => f.range.line >= e.item.first && f.range.line <= e.item.last)?.item;
+        const it = itemAt(f.range.line, items);
         if (!it) {
           ok = false; // a finding outside every item: cannot tell whether it stands
           break;
