@@ -33,10 +33,24 @@ export function applySuppressions(findings: Finding[], model: Model): Finding[] 
       }
     }
   }
-  for (const f of findings) {
-    const sups = byFile.get(f.range.file);
-    const hit = sups?.some((s) => s.reason && (s.rules.includes(f.rule) || s.rules.includes("all")) && (s.endLine === f.range.line || s.endLine === f.range.line - 1 || s.line === f.range.line));
-    if (!hit) out.push(f);
-  }
+  out.push(...unsuppressed(findings, byFile));
   return [...out, ...extraFindings];
+}
+
+/** Each file's suppressions, for the files of this model that have any. */
+export function suppressionsOf(model: Model): Map<string, Suppression[]> {
+  const byFile = new Map<string, Suppression[]>();
+  for (const f of model.files.values()) {
+    const s = (f.extra.suppressions as Suppression[] | undefined) ?? [];
+    if (s.length) byFile.set(f.file, s);
+  }
+  return byFile;
+}
+
+/** The findings no suppression (with a reason) covers. */
+export function unsuppressed(findings: Finding[], byFile: ReadonlyMap<string, Suppression[]>): Finding[] {
+  return findings.filter((f) => {
+    const sups = byFile.get(f.range.file);
+    return !sups?.some((s) => s.reason && (s.rules.includes(f.rule) || s.rules.includes("all")) && (s.endLine === f.range.line || s.endLine === f.range.line - 1 || s.line === f.range.line));
+  });
 }

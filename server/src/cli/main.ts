@@ -12,7 +12,6 @@ import { ALL_TRIPLES, parseTriple, type Triple } from "../model/targets.js";
 import { allRules } from "../rules/index.js";
 import { formatJson, formatSarif, formatText, toJsonFinding, type JsonFinding } from "./format.js";
 import { formatLayoutText, layoutTypes } from "./layout-cmd.js";
-import { fixesFor } from "../fixes/index.js";
 import { makeBaseline, newSince, readBaseline } from "./baseline.js";
 
 export const VERSION = "0.1.0";
@@ -172,26 +171,39 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   const progress = (io.stderrTTY ?? io.isTTY)
     ? (n: number, total: number) => io.stderr(`\rferrule: reading ${n}/${total} files…`)
     : undefined;
-  await ws.loadAllAsync(paths.map((p) => path.resolve(io.cwd, p)), progress, { script: bundleScript() });
-  if (progress) io.stderr("\r\x1b[K");
-
+  // FERRULE_TIMINGS=1: phase times on stderr (for the benchmark and for users asking "why slow").
+  const timings = process.env.FERRULE_TIMINGS === "1";
+  let t0 = performance.now();
+  const phase = (name: string) => {
+    if (!timings) return;
+    const t = performance.now();
+    io.stderr(`ferrule: timing ${name} ${(t - t0).toFixed(0)} ms, heap ${(process.memoryUsage().heapUsed / 2 ** 20).toFixed(0)} MiB, rss ${(process.memoryUsage().rss / 2 ** 20).toFixed(0)} MiB\n`);
+    t0 = t;
+  };
+  const roots = paths.map((p) => path.resolve(io.cwd, p));
   if (o.cmd === "layout") {
+    await ws.loadAllAsync(roots, progress, { script: bundleScript() });
+    if (progress) io.stderr("\r\x1b[K");
+    phase("read+extract");
     if (o.format === "json") io.stdout(JSON.stringify({ version: 1, types: layoutTypes(ws.model(), io.cwd) }, null, 2) + "\n");
     else io.stdout(formatLayoutText(ws.model(), io.cwd));
     return 0;
   }
 
-  const findings = ws.check();
-  let json: JsonFinding[] = findings.map((f) => {
+  // `check` reads the workspace in chunks of related files (analysis/chunks.ts): the findings are
+  // those of one model of everything, with one chunk's facts in memory at a time.
+  const chunkFiles = Number(process.env.FERRULE_CHUNK_FILES) || undefined;
+  const res = await ws.checkChunked(roots, { script: bundleScript(), chunkFiles, withFixes: o.showFixes, onProgress: progress, onPhase: phase });
+  if (progress) io.stderr("\r\x1b[K");
+  phase(`check (${res.files} files in ${res.chunks} chunk(s), largest ${res.largestChunk})`);
+  let json: JsonFinding[] = res.findings.map((f) => {
     const j = toJsonFinding(f, io.cwd);
-    if (o.showFixes) {
-      const fx = fixesFor(f, ws.model());
-      if (fx.length) {
-        j.fixes = fx.map((x) => ({
-          title: x.title,
-          edits: x.edits.map((e) => ({ file: toJsonFinding({ ...f, range: e.range, related: [] }, io.cwd).file, line: e.range.line + 1, column: e.range.col + 1, endLine: e.range.endLine + 1, endColumn: e.range.endCol + 1, newText: e.newText })),
-        }));
-      }
+    const fx = res.fixes.get(f);
+    if (fx) {
+      j.fixes = fx.map((x) => ({
+        title: x.title,
+        edits: x.edits.map((e) => ({ file: toJsonFinding({ ...f, range: e.range, related: [] }, io.cwd).file, line: e.range.line + 1, column: e.range.col + 1, endLine: e.range.endLine + 1, endColumn: e.range.endCol + 1, newText: e.newText })),
+      }));
     }
     return j;
   });
@@ -217,6 +229,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
       json = fresh;
     }
   }
+  phase("findings");
   if (o.format === "json") io.stdout(formatJson(json));
   else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
   else io.stdout(formatText(json, io.isTTY && !process.env.NO_COLOR) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));

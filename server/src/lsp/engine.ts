@@ -18,11 +18,9 @@ import { Workspace, listSources } from "../analysis/workspace.js";
 import type { FerruleConfig } from "../analysis/config.js";
 import type { Finding } from "../rules/api.js";
 import type { Model } from "../model/boundary.js";
-import { normName } from "../model/boundary.js";
-import type { AbiType, CachedItem, FileFacts, ItemCache, Range } from "../model/types.js";
+import type { CachedItem, FileFacts, ItemCache, Range } from "../model/types.js";
 import { langOf, type Tree } from "../parse/parser.js";
-import type { RustOwnFacts } from "../model/ownership.js";
-import { pairingStems } from "../rules/ownership.js";
+import { keysOf, touchesKeys } from "../analysis/keys.js";
 
 export interface Pos {
   line: number;
@@ -99,51 +97,6 @@ function positionAfter(start: Pos, inserted: string): Pos {
   return { line: start.line + lines.length - 1, character: inserted.length - lines[lines.length - 1]! };
 }
 
-/** Names a file's facts declare (D) and use (U), for the dependency index. */
-function keysOf(f: FileFacts | undefined): { decl: Set<string>; use: Set<string> } {
-  const decl = new Set<string>();
-  const use = new Set<string>();
-  if (!f) return { decl, use };
-  const typeRefs = (t: AbiType | undefined, depth = 0): void => {
-    if (!t || depth > 12) return;
-    switch (t.k) {
-      case "named": use.add("t:" + normName(t.name)); break;
-      case "ptr": typeRefs(t.to, depth + 1); break;
-      case "array": typeRefs(t.of, depth + 1); break;
-      case "fn": t.params.forEach((p) => typeRefs(p, depth + 1)); typeRefs(t.ret, depth + 1); break;
-      default: break;
-    }
-  };
-  for (const fn of f.fns) {
-    // Only what the model links across files (as in Model's symbol table): not file-local
-    // helpers, not plain Rust functions that are neither extern nor unmangled.
-    if ((fn as { internal?: boolean }).internal) continue;
-    if (fn.lang === "rust" && fn.role === "export" && !fn.noMangle && !fn.isExtern) continue;
-    decl.add("s:" + fn.symbol);
-    if (fn.name !== fn.symbol) decl.add("s:" + fn.name);
-    fn.params.forEach((p) => typeRefs(p.type));
-    typeRefs(fn.ret);
-    // what the ownership family relates functions by, beyond their signatures: the name stems
-    // of constructor/releaser pairs and the types a Rust body boxes or unboxes
-    for (const st of pairingStems(fn.symbol)) decl.add("h:" + st);
-    const own = (fn.body as { ownership?: RustOwnFacts } | undefined)?.ownership;
-    if (own) {
-      for (const p of own.produces) if (p.inner) use.add("t:" + normName(p.inner));
-      for (const r of own.releases) if (r.inner) use.add("t:" + normName(r.inner));
-    }
-  }
-  for (const t of f.types) {
-    decl.add("t:" + normName(t.name));
-    if (t.tag) decl.add("t:" + normName(t.tag));
-    t.fields.forEach((x) => typeRefs(x.type));
-    typeRefs(t.aliasOf);
-  }
-  for (const d of f.defines) decl.add("t:" + normName(d.name));
-  for (const c of f.calls) use.add("s:" + c.callee);
-  for (const a of f.asserts) use.add("t:" + normName(a.typeName));
-  return { decl, use };
-}
-
 /** Whether a Rust file's facts are exactly the facts of its items, in order. */
 function fromItems(f: FileFacts, order: NonNullable<ItemCache["order"]>): boolean {
   let nf = 0, nt = 0, na = 0;
@@ -153,14 +106,6 @@ function fromItems(f: FileFacts, order: NonNullable<ItemCache["order"]>): boolea
     for (const x of e.item.asserts) if (f.asserts[na++] !== x) return false;
   }
   return nf === f.fns.length && nt === f.types.length && na === f.asserts.length && !f.defines.length && !f.calls.length;
-}
-
-/** Whether names relate (as Engine.relatedTo relates files): a name one declares and the other
- * declares or uses, or a type both use. */
-function touchesKeys(k: { decl: Set<string>; use: Set<string> }, K: { decl: Set<string>; use: Set<string> }): boolean {
-  for (const x of k.decl) if (K.decl.has(x) || K.use.has(x)) return true;
-  for (const x of k.use) if (K.decl.has(x) || (K.use.has(x) && x.startsWith("t:"))) return true;
-  return false;
 }
 
 /** The item whose rows (attributes and doc comments included) hold this line. */
@@ -568,7 +513,7 @@ export class Engine {
       if (!it.fns.length && !it.types.length && !it.asserts.length) continue;
       const k = itemKeys(it);
       // a helper (no name the seam links) can change what the functions calling it do
-      if (!k.decl.size || it.fns.some((fn) => (fn as { internal?: boolean }).internal)) return undefined;
+      if (![...k.decl].some((x) => !x.startsWith("r:")) || it.fns.some((fn) => (fn as { internal?: boolean }).internal)) return undefined;
       k.decl.forEach((x) => kDecl.add(x));
       k.use.forEach((x) => kUse.add(x));
     }
@@ -632,7 +577,8 @@ export class Engine {
    */
   private relatedTo(k: { decl: Set<string>; use: Set<string> }, into: Set<string>): void {
     for (const x of k.decl) {
-      this.decl.get(x)?.forEach((f) => into.add(f));
+      // two declarers of one Rust helper name do not relate (analysis/keys.ts)
+      if (!x.startsWith("r:")) this.decl.get(x)?.forEach((f) => into.add(f));
       this.use.get(x)?.forEach((f) => into.add(f));
     }
     for (const x of k.use) {
@@ -688,7 +634,9 @@ export class Engine {
     for (const e of order) {
       const it = e.item;
       const k = itemKeys(it);
-      if (dirty.has(it) || !k.decl.size || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
+      // helpers (items that declare no linked name, only `r:` helper names) always come along
+      const helper = ![...k.decl].some((x) => !x.startsWith("r:"));
+      if (dirty.has(it) || helper || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
     }
     for (let grew = true; grew;) {
       grew = false;

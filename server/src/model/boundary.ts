@@ -1,9 +1,9 @@
 // The boundary model: every file's facts linked into one view of the seam. Built from FileFacts
 // only (no file reads), so it is cheap to rebuild after a one-file change.
 
-import * as path from "node:path";
 import type { AbiType, FileFacts, FnDecl, IncludeRef, TypeDecl } from "./types.js";
 import { ALL_TRIPLES, type Triple } from "./targets.js";
+import { IncludeIndex } from "./includes.js";
 
 export type Side = "rust" | "c";
 
@@ -16,6 +16,8 @@ export interface ModelConfig {
   /** For a model of part of a workspace (the language server's scoped re-checks): which sides
    * the whole workspace has, so rules that ask "is there any C at all" answer for the workspace. */
   workspaceSides?: Record<Side, boolean>;
+  /** For a model of part of a workspace: resolve includes against the whole workspace. */
+  includeIndex?: IncludeIndex;
 }
 
 export const DEFAULT_CONFIG: ModelConfig = { targets: [...ALL_TRIPLES], includePaths: [], families: {} };
@@ -34,7 +36,7 @@ export class Model {
   private readonly definesBy = new Map<string, AbiType>();
   private readonly includers = new Map<string, string[]>();
   private readonly fnIds = new Map<string, FnDecl>();
-  private byBase: Map<string, string[]> | undefined;
+  private includeIndex: IncludeIndex | undefined;
   /** Where each `#include "…"` of the workspace resolved (the facts themselves stay untouched). */
   private readonly includeTargets = new Map<IncludeRef, string>();
 
@@ -105,25 +107,12 @@ export class Model {
     return out;
   }
 
-  /** Resolves `#include "x"` against the including file's folder, then the include paths. */
+  /** Resolves `#include "x"` against the including file's folder, then the include paths, then a
+   * unique file of that name (see model/includes.ts); against the whole workspace when
+   * `config.includeIndex` is given. */
   resolveInclude(from: string, inc: string): string | undefined {
-    const cands = [path.normalize(path.join(path.dirname(from), inc))];
-    for (const p of this.config.includePaths) cands.push(path.normalize(path.join(p, inc)));
-    for (const c of cands) if (this.files.has(c)) return c;
-    // Fall back to a unique file of that name anywhere in the workspace (common practice: build
-    // systems add the header folders with -I). Indexed by base name, built on first use.
-    if (!this.byBase) {
-      this.byBase = new Map();
-      for (const f of this.files.keys()) {
-        const b = path.basename(f);
-        const arr = this.byBase.get(b);
-        if (arr) arr.push(f);
-        else this.byBase.set(b, [f]);
-      }
-    }
-    const base = path.basename(inc);
-    const hits = (this.byBase.get(base) ?? []).filter((f) => f === inc || f.endsWith("/" + inc) || inc === base);
-    return hits.length === 1 ? hits[0] : undefined;
+    this.includeIndex ??= this.config.includeIndex ?? new IncludeIndex((f) => this.files.has(f), () => this.files.keys(), this.config.includePaths);
+    return this.includeIndex.resolve(from, inc);
   }
 
   /** Files that include `file`, directly or through other headers. */

@@ -35,6 +35,23 @@ export interface RuleFamily {
   name: string;
   rules: RuleMeta[];
   check(model: Model): Finding[];
+  /** Checks whose findings depend on the whole workspace, not only on related files (see
+   * WorkspaceCheck). */
+  workspace?: WorkspaceCheck[];
+}
+
+/**
+ * A check that compares items across the whole workspace, so that a finding in one file depends
+ * on files no name or include links to it (e.g. "two handle types both reach Rust as
+ * `*mut c_void`"). It runs in two steps, so that a check in chunks (analysis/chunks.ts) can
+ * gather from every chunk before concluding: `gather` returns plain data about one model's items
+ * (each item about related files only), `conclude` turns everything gathered into findings. For
+ * one model of everything, the result is `conclude(gather(model))`.
+ */
+export interface WorkspaceCheck {
+  id: string;
+  gather(model: Model): unknown[];
+  conclude(items: unknown[]): Finding[];
 }
 
 /** "" when a difference holds on every checked target, else " (on armv7, i686 only)". */

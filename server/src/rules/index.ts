@@ -51,29 +51,68 @@ export function allRules(): RuleMeta[] {
   return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON];
 }
 
-export function runFamily(f: RuleFamily, model: Model): Finding[] {
-  try {
-    return f.check(model);
-  } catch (e) {
-    // anything may be thrown (undefined, null, a string): never let the message itself throw
-    const err = { message: e instanceof Error ? e.message : String(e) };
-    const anyFile = model.files.keys().next().value ?? "";
-    return [{
-      rule: INTERNAL.id,
-      severity: "warning",
-      message: `rule family \`${f.name}\` failed: ${err.message} — its findings are missing from this run; the other families' results stand`,
-      range: { file: anyFile, line: 0, col: 0, endLine: 0, endCol: 0 },
-      related: [],
-    }];
-  }
+function failed(what: string, e: unknown, file: string): Finding {
+  // anything may be thrown (undefined, null, a string): never let the message itself throw
+  const err = { message: e instanceof Error ? e.message : String(e) };
+  return {
+    rule: INTERNAL.id,
+    severity: "warning",
+    message: `${what} failed: ${err.message} — its findings are missing from this run; the other families' results stand`,
+    range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
+    related: [],
+  };
 }
 
-export function runRules(model: Model, families: RuleFamily[] = FAMILIES): Finding[] {
+/** A family's findings on one model; with `gathered`, its workspace checks only gather into it
+ * (keyed by check id) and conclude later (concludeWorkspace). */
+export function runFamily(f: RuleFamily, model: Model, gathered?: Map<string, unknown[]>): Finding[] {
+  const anyFile = () => model.files.keys().next().value ?? "";
+  let out: Finding[];
+  try {
+    out = f.check(model);
+  } catch (e) {
+    return [failed(`rule family \`${f.name}\``, e, anyFile())];
+  }
+  for (const w of f.workspace ?? []) {
+    try {
+      const items = w.gather(model);
+      if (gathered) {
+        const arr = gathered.get(w.id);
+        if (arr) arr.push(...items);
+        else gathered.set(w.id, items);
+      } else {
+        out.push(...w.conclude(items));
+      }
+    } catch (e) {
+      out.push(failed(`rule \`${w.id}\``, e, anyFile()));
+    }
+  }
+  return out;
+}
+
+/** Findings of every family on one model. With `gathered` (a check in chunks), the workspace
+ * checks gather into it instead of concluding; call concludeWorkspace once every chunk ran. */
+export function runRules(model: Model, families: RuleFamily[] = FAMILIES, gathered?: Map<string, unknown[]>): Finding[] {
   const out: Finding[] = [];
   for (const f of model.files.values()) {
     for (const n of f.notices) out.push({ rule: n.rule, severity: n.severity, message: n.message, range: n.range, related: [] });
   }
-  for (const fam of families) out.push(...runFamily(fam, model));
+  for (const fam of families) out.push(...runFamily(fam, model, gathered));
+  return out;
+}
+
+/** The findings of the workspace checks from what every chunk gathered. */
+export function concludeWorkspace(gathered: Map<string, unknown[]>, families: RuleFamily[] = FAMILIES): Finding[] {
+  const out: Finding[] = [];
+  for (const fam of families) {
+    for (const w of fam.workspace ?? []) {
+      try {
+        out.push(...w.conclude(gathered.get(w.id) ?? []));
+      } catch (e) {
+        out.push(failed(`rule \`${w.id}\``, e, ""));
+      }
+    }
+  }
   return out;
 }
 

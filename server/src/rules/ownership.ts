@@ -378,7 +378,6 @@ function checkRust(model: Model, om: OwnershipModel, out: Finding[]): void {
       }
     }
   }
-  checkIndistinct(model, out);
 }
 
 function howText(h: OwnHow): string {
@@ -404,9 +403,11 @@ function boxOf(h: OwnHow): string {
   return h === "arc" ? "Arc" : h === "rc" ? "Rc" : h === "vec" ? "Vec" : "Box";
 }
 
-function checkIndistinct(model: Model, out: Finding[]): void {
-  // C opaque/struct handle type name → Rust places where it arrives as *mut c_void
-  const byType = new Map<string, { rust: FnDecl; range: Range; c: Range; label: string }[]>();
+/** One Rust place where a C handle type arrives as `*mut c_void` (plain data: gathered per chunk). */
+interface VoidHandlePlace { ctype: string; range: Range; c: Range; label: string; fnName: string; fnId: string }
+
+function voidHandlePlaces(model: Model): VoidHandlePlace[] {
+  const out: VoidHandlePlace[] = [];
   for (const g of model.symbols.values()) {
     const proto = g.c.find((f) => f.role === "proto" && f.inHeader) ?? g.c.find((f) => f.role === "proto");
     if (!proto) continue;
@@ -424,23 +425,34 @@ function checkIndistinct(model: Model, out: Finding[]): void {
         if (rto.k !== "void") continue;
         const agg = model.aggregate(x.ct.to, "c");
         if (!agg || (agg.kind !== "opaque" && agg.kind !== "struct")) continue;
-        const key = agg.name;
-        const a = byType.get(key) ?? [];
-        a.push({ rust: r, range: x.range, c: x.c, label: x.label });
-        byType.set(key, a);
+        out.push({ ctype: agg.name, range: x.range, c: x.c, label: x.label, fnName: r.name, fnId: r.id });
       }
     }
   }
-  if (byType.size < 2) return;
-  const names = [...byType.keys()];
+  return out;
+}
+
+/** Every C handle type that reaches Rust as `*mut c_void`, anywhere in the workspace: a workspace
+ * check (rules/api.ts WorkspaceCheck), since the places share no names. */
+function indistinctFindings(items: unknown[]): Finding[] {
+  const byType = new Map<string, VoidHandlePlace[]>();
+  for (const p of items as VoidHandlePlace[]) {
+    const a = byType.get(p.ctype) ?? [];
+    a.push(p);
+    byType.set(p.ctype, a);
+  }
+  if (byType.size < 2) return [];
+  const names = [...byType.keys()].sort();
+  const out: Finding[] = [];
   for (const [t, places] of byType) {
     const others = names.filter((n) => n !== t);
     for (const p of places) {
       out.push(finding(INDISTINCT, p.range,
-        `\`${p.rust.name}\` ${p.label} is \`*mut c_void\` for the C handle type \`${t}\`; ${others.map((o) => `\`${o}\``).join(", ")} also reach${others.length === 1 ? "es" : ""} Rust as \`*mut c_void\`, so ferrule cannot tell these handles apart and rustc will not either`,
-        [{ range: p.c, message: `C side: \`${t} *\`` }], { data: { fn: p.rust.id, ctype: t } }));
+        `\`${p.fnName}\` ${p.label} is \`*mut c_void\` for the C handle type \`${t}\`; ${others.map((o) => `\`${o}\``).join(", ")} also reach${others.length === 1 ? "es" : ""} Rust as \`*mut c_void\`, so ferrule cannot tell these handles apart and rustc will not either`,
+        [{ range: p.c, message: `C side: \`${t} *\`` }], { data: { fn: p.fnId, ctype: t } }));
     }
   }
+  return out;
 }
 
 // ---- panics
@@ -904,6 +916,7 @@ export const ownershipFamily: RuleFamily = {
   name: "ownership",
   rules: [NO_RELEASER, RELEASE_NO_NULL_CHECK, BORROWER_RELEASES, RELEASE_KIND, PANIC_ACROSS, INDISTINCT,
     WRAPPER_LEAKS, COPYABLE_WRAPPER, MOVE_KEEPS, USE_AFTER_RELEASE, FOREIGN_FREE, KIND_MISMATCH],
+  workspace: [{ id: INDISTINCT.id, gather: voidHandlePlaces, conclude: indistinctFindings }],
   check(model: Model): Finding[] {
     const out: Finding[] = [];
     const om = ownershipModel(model);

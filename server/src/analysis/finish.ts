@@ -1,0 +1,34 @@
+// The last step of every check, whole or partial: severity overrides from the configuration,
+// inline suppressions, de-duplication and a stable order.
+
+import type { Model } from "../model/boundary.js";
+import type { Finding } from "../rules/index.js";
+import type { FerruleConfig } from "./config.js";
+import { applySuppressions } from "./suppress.js";
+
+export function finishFindings(raw: Finding[], model: Model, config: Pick<FerruleConfig, "severity">): Finding[] {
+  return sortFindings(dedupe(applySuppressions(withSeverity(raw, config), model)));
+}
+
+/** Severity overrides; "off" drops the finding. */
+export function withSeverity(raw: Finding[], config: Pick<FerruleConfig, "severity">): Finding[] {
+  return raw.flatMap((f) => {
+    const s = config.severity[f.rule];
+    if (s === "off") return [];
+    return s ? [{ ...f, severity: s }] : [f];
+  });
+}
+
+export function dedupe(fs_: Finding[]): Finding[] {
+  const seen = new Set<string>();
+  return fs_.filter((f) => {
+    const k = `${f.rule}|${f.range.file}|${f.range.line}|${f.range.col}|${f.message}`;
+    if (seen.has(k)) return false;
+    seen.add(k);
+    return true;
+  });
+}
+
+export function sortFindings(out: Finding[]): Finding[] {
+  return out.sort((a, b) => a.range.file.localeCompare(b.range.file) || a.range.line - b.range.line || a.range.col - b.range.col || a.rule.localeCompare(b.rule) || a.message.localeCompare(b.message));
+}
