@@ -8,7 +8,7 @@
 
 import { IncludeIndex } from "../model/includes.js";
 import { Model, type Side } from "../model/boundary.js";
-import { FAMILIES, runRules, type Finding } from "../rules/index.js";
+import { FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
 import { suppressionsOf, type Suppression } from "./suppress.js";
 import { fixesFor, type Fix } from "../fixes/index.js";
 import type { FerruleConfig } from "./config.js";
@@ -116,7 +116,7 @@ export interface ChunkResult {
 /** Checks one chunk of packed files with a model of those files only (see analysis/chunks.ts). */
 /** Checks one chunk of packed files with a model of those files only (see planChunks); the
  * workspace checks (rules/api.ts WorkspaceCheck) gather into `gathered`. */
-export function checkChunk(chunk: readonly Uint8Array[], ctx: ChunkContext, gathered: Map<string, unknown[]>, includeIndex = IncludeIndex.of(ctx.files, ctx.config.includePaths)): ChunkResult {
+export function checkChunk(chunk: readonly Uint8Array[], ctx: ChunkContext, gathered: Map<string, GatheredItem[]>, includeIndex = IncludeIndex.of(ctx.files, ctx.config.includePaths)): ChunkResult {
   const facts = chunk.map((b) => unpackFacts(b));
   const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex });
   const findings = finishFindings(runRules(model, FAMILIES, gathered), model, ctx.config);

@@ -21,7 +21,20 @@ export interface Keys {
 }
 
 /** Names a file's facts declare (D) and use (U), for the dependency index. */
-export function keysOf(f: FileFacts | undefined): Keys {
+/** The file's Rust functions with body facts and no `self`: a plain call to one of these names
+ * resolves in the file (rules/ownership.ts CrateIndex prefers the caller's file). */
+export function localHelpers(f: FileFacts): Set<string> {
+  const out = new Set<string>();
+  for (const fn of f.fns) {
+    const own = (fn.body as { ownership?: RustOwnFacts } | undefined)?.ownership;
+    if (fn.lang === "rust" && own && !own.hasSelf) out.add(fn.name);
+  }
+  return out;
+}
+
+/** `local`: the plain-call names that resolve in the caller's file (default: this facts'
+ * localHelpers; the language server passes the whole file's when keying one item). */
+export function keysOf(f: FileFacts | undefined, local?: ReadonlySet<string>): Keys {
   const decl = new Set<string>();
   const use = new Set<string>();
   if (!f) return { decl, use };
@@ -35,12 +48,10 @@ export function keysOf(f: FileFacts | undefined): Keys {
       default: break;
     }
   };
-  const plain = new Set<string>(); // this file's Rust functions with body facts and no `self`
+  const plain = local ?? localHelpers(f);
   for (const fn of f.fns) {
     const own = (fn.body as { ownership?: RustOwnFacts } | undefined)?.ownership;
-    if (fn.lang !== "rust" || !own) continue;
-    decl.add("r:" + fn.name);
-    if (!own.hasSelf) plain.add(fn.name);
+    if (fn.lang === "rust" && own) decl.add("r:" + fn.name);
   }
   for (const fn of f.fns) {
     const own = (fn.body as { ownership?: RustOwnFacts } | undefined)?.ownership;

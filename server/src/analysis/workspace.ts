@@ -9,7 +9,7 @@ import { extractFile, initParsers, type ExtractOptions, skippedFacts } from "../
 import { langOf } from "../parse/parser.js";
 import { DEFAULT_CONFIG, Model } from "../model/boundary.js";
 import type { FileFacts } from "../model/types.js";
-import { concludeWorkspace, runRules, type Finding } from "../rules/index.js";
+import { concludeWorkspace, FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
 import { DEFAULTS, type FerruleConfig } from "./config.js";
 import { dedupe, finishFindings, sortFindings, withSeverity } from "./finish.js";
 import { unsuppressed, type Suppression } from "./suppress.js";
@@ -202,10 +202,20 @@ export class Workspace {
     return this.cachedFindings;
   }
 
+  /** Like check(), but the workspace checks (rules/api.ts WorkspaceCheck) only gather: their
+   * findings are left out, and what they gathered is returned (the language server concludes
+   * them itself, from items it keeps per file). */
+  checkGathering(): { findings: Finding[]; gathered: Map<string, GatheredItem[]> } {
+    const gathered = new Map<string, GatheredItem[]>();
+    const findings = this.finish([...this.walkNotices, ...runRules(this.model(), FAMILIES, gathered)], this.model());
+    return { findings, gathered };
+  }
+
   /** Runs the rules over a model of only these files (the language server's scoped re-check:
    * an edit re-checks the boundary items it can affect; the caller picks the files, and may
-   * stand in a part of a file's facts for the whole). */
-  checkSubset(files: Iterable<string>, replace?: Map<string, FileFacts>): { findings: Finding[]; model: Model } {
+   * stand in a part of a file's facts for the whole). With `gathered`, the workspace checks gather
+   * into it instead of concluding on this part. */
+  checkSubset(files: Iterable<string>, replace?: Map<string, FileFacts>, gathered?: Map<string, GatheredItem[]>): { findings: Finding[]; model: Model } {
     const facts: FileFacts[] = [];
     for (const f of files) {
       const e = replace?.get(f) ?? this.entries.get(f)?.facts;
@@ -218,7 +228,7 @@ export class Workspace {
       if (sides.rust && sides.c) break;
     }
     const model = new Model(facts, { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families, workspaceSides: sides });
-    return { findings: this.finish(runRules(model), model), model };
+    return { findings: this.finish(runRules(model, FAMILIES, gathered), model), model };
   }
 
   /**
@@ -243,7 +253,7 @@ export class Workspace {
     // slower on two cores: 9.6 s against 6.7 s at 1M lines, each worker paying its own start-up
     // and collections.)
     const budget = new HeapBudget(48);
-    const gathered = new Map<string, unknown[]>();
+    const gathered = new Map<string, GatheredItem[]>();
     const suppressions = new Map<string, Suppression[]>();
     const results = chunks.map((c, i) => {
       const r = checkChunk(c, ctx, gathered, includeIndex);

@@ -17,10 +17,13 @@ import { createHash } from "node:crypto";
 import { Workspace, listSources } from "../analysis/workspace.js";
 import type { FerruleConfig } from "../analysis/config.js";
 import type { Finding } from "../rules/api.js";
+import { concludeWorkspace, workspaceCheckIds, type GatheredItem } from "../rules/index.js";
+import { withSeverity } from "../analysis/finish.js";
+import { unsuppressed, type Suppression } from "../analysis/suppress.js";
 import type { Model } from "../model/boundary.js";
 import type { CachedItem, FileFacts, ItemCache, Range } from "../model/types.js";
 import { langOf, type Tree } from "../parse/parser.js";
-import { keysOf, touchesKeys } from "../analysis/keys.js";
+import { keysOf, localHelpers, touchesKeys, type Keys } from "../analysis/keys.js";
 
 export interface Pos {
   line: number;
@@ -114,16 +117,28 @@ function itemAt(line: number, items: Iterable<CachedItem>): CachedItem | undefin
   return undefined;
 }
 
-const itemKeyCache = new WeakMap<CachedItem, { decl: Set<string>; use: Set<string> }>();
+const itemKeyCache = new WeakMap<CachedItem, { local: string; keys: Keys }>();
+const localCache = new WeakMap<FileFacts, { set: Set<string>; sig: string }>();
 
-/** Names one Rust item declares and uses (as keysOf for a file). */
-function itemKeys(it: CachedItem): { decl: Set<string>; use: Set<string> } {
-  let k = itemKeyCache.get(it);
-  if (!k) {
-    k = keysOf({ file: "", lang: "rust", fns: it.fns, types: it.types, asserts: it.asserts, includes: [], calls: [], classes: [], defines: [], notices: [], hasErrors: false, extra: {} });
-    itemKeyCache.set(it, k);
+/** The helper names local to a file (analysis/keys.ts localHelpers), with a signature. */
+function localOf(f: FileFacts | undefined): { set: Set<string>; sig: string } {
+  if (!f) return { set: new Set(), sig: "" };
+  let l = localCache.get(f);
+  if (!l) {
+    const set = localHelpers(f);
+    localCache.set(f, (l = { set, sig: [...set].sort().join(",") }));
   }
-  return k;
+  return l;
+}
+
+/** Names one Rust item declares and uses (as keysOf for a file), as part of a file whose local
+ * helpers are `local` (a plain call to one of them is no cross-file use). */
+function itemKeys(it: CachedItem, local: { set: Set<string>; sig: string }): Keys {
+  const c = itemKeyCache.get(it);
+  if (c && c.local === local.sig) return c.keys;
+  const keys = keysOf({ file: "", lang: "rust", fns: it.fns, types: it.types, asserts: it.asserts, includes: [], calls: [], classes: [], defines: [], notices: [], hasErrors: false, extra: {} }, local.set);
+  itemKeyCache.set(it, { local: local.sig, keys });
+  return keys;
 }
 
 export interface AnalysisResult {
@@ -139,10 +154,15 @@ export interface AnalysisResult {
   context?: number;
 }
 
+const WORKSPACE_CHECKS = workspaceCheckIds();
+
 export class Engine {
   ws: Workspace;
   readonly docs = new Map<string, OpenDoc>();
   findings: Finding[] = [];
+  /** What the workspace checks gathered, by check id and file, and their findings (refreshLayer). */
+  private readonly gatheredBy = new Map<string, Map<string, GatheredItem[]>>();
+  private layer: Finding[] = [];
   private dirty = new Set<string>();
   private removed = new Set<string>();
   private decl = new Map<string, Set<string>>(); // key → files declaring it
@@ -191,6 +211,8 @@ export class Engine {
     this.diskItems.clear();
     this.fullModel = this.linkModel = undefined;
     this.findings = [];
+    this.gatheredBy.clear();
+    this.layer = [];
     this.needFull = true;
   }
 
@@ -370,11 +392,13 @@ export class Engine {
       const m = itemMoves.get(f);
       const narrow = m && this.itemScope(f, oldFacts.get(f), m.before, m.after);
       if (narrow) {
-        const { findings } = this.ws.checkSubset(narrow.context, new Map([[f, narrow.partial]]));
+        const gathered = new Map<string, GatheredItem[]>();
+        const { findings } = this.ws.checkSubset(narrow.context, new Map([[f, narrow.partial]]), gathered);
         const inDirty = (r: Range) => r.file !== f || narrow.dirty.some(([a, b]) => r.line >= a && r.line <= b);
         const keep: Finding[] = [];
         const moved = new Set<string>(); // files whose kept findings point at moved lines
         for (const x of this.findings) {
+          if (WORKSPACE_CHECKS.has(x.rule)) continue; // (the layer is concluded again below)
           if (narrow.affected.has(x.range.file)) continue;
           if (x.range.file === f && narrow.dirtyBefore.some(([a, b]) => x.range.line >= a && x.range.line <= b)) continue;
           const y = narrow.shift(x);
@@ -382,12 +406,15 @@ export class Engine {
           keep.push(y);
         }
         const fresh = findings.filter((x) => narrow.affected.has(x.range.file) || (x.range.file === f && inDirty(x.range)));
-        this.findings = sortFindings([...keep, ...fresh]);
+        const wasDirty = (r: Range) => narrow.affected.has(r.file) || (r.file === f && narrow.dirtyBefore.some(([a, b]) => r.line >= a && r.line <= b));
+        const isDirty = (r: Range) => narrow.affected.has(r.file) || (r.file === f && inDirty(r));
+        const layerChanged = this.refreshLayer(gathered, wasDirty, isDirty, (r) => narrow.shift({ rule: "", severity: "hint", message: "", range: r, related: [] }).range);
+        this.findings = sortFindings([...keep, ...fresh, ...this.layer]);
         this.lastContext = narrow.context.size;
         this.fullModel = undefined;
         this.needFull = false;
         // (files with moved findings are republished, not re-checked)
-        const affected = new Set([...narrow.affected, ...moved, f]);
+        const affected = new Set([...narrow.affected, ...moved, f, ...layerChanged]);
         return { findings: this.findings, affected, changed, scope: "items", ms: performance.now() - t0, context: narrow.context.size };
       }
     }
@@ -396,34 +423,90 @@ export class Engine {
       const narrow = this.partnerScope(changed, oldKeys, affected);
       if (narrow && narrow.context.size <= Math.max(40, this.fileKeys.size * 0.4)) {
         this.lastContext = narrow.context.size;
-        const { findings } = this.ws.checkSubset(narrow.context, narrow.replace);
-        const inDirty = (x: Finding) => {
-          const dirty = narrow.partial.get(x.range.file);
-          return !!dirty && !!itemAt(x.range.line, dirty);
+        const gathered = new Map<string, GatheredItem[]>();
+        const { findings } = this.ws.checkSubset(narrow.context, narrow.replace, gathered);
+        const inDirtyAt = (r: Range) => {
+          const dirty = narrow.partial.get(r.file);
+          return !!dirty && !!itemAt(r.line, dirty);
         };
-        const keep = this.findings.filter((x) => !narrow.full.has(x.range.file) && !inDirty(x));
+        const inDirty = (x: Finding) => inDirtyAt(x.range);
+        const keep = this.findings.filter((x) => !WORKSPACE_CHECKS.has(x.rule) && !narrow.full.has(x.range.file) && !inDirty(x));
         const fresh = findings.filter((x) => narrow.full.has(x.range.file) || inDirty(x));
-        this.findings = sortFindings([...keep, ...fresh]);
+        const owned = (r: Range) => narrow.full.has(r.file) || inDirtyAt(r);
+        const layerChanged = this.refreshLayer(gathered, owned, owned);
+        this.findings = sortFindings([...keep, ...fresh, ...this.layer]);
         this.fullModel = undefined;
         this.needFull = false;
+        for (const x of layerChanged) affected.add(x);
         return { findings: this.findings, affected, changed, scope: "scoped", ms: performance.now() - t0, context: narrow.context.size };
       }
       this.lastContext = context.size;
       if (context.size <= Math.max(40, this.fileKeys.size * 0.4)) {
-        const { findings } = this.ws.checkSubset(context);
-        const keep = this.findings.filter((f) => !affected.has(f.range.file));
+        const gathered = new Map<string, GatheredItem[]>();
+        const { findings } = this.ws.checkSubset(context, undefined, gathered);
+        const keep = this.findings.filter((f) => !WORKSPACE_CHECKS.has(f.rule) && !affected.has(f.range.file));
         const fresh = findings.filter((f) => affected.has(f.range.file));
-        this.findings = sortFindings([...keep, ...fresh]);
+        const owned = (r: Range) => affected.has(r.file);
+        for (const x of this.refreshLayer(gathered, owned, owned)) affected.add(x);
+        this.findings = sortFindings([...keep, ...fresh, ...this.layer]);
         this.fullModel = undefined;
         this.needFull = false;
         return { findings: this.findings, affected, changed, scope: "scoped", ms: performance.now() - t0, context: context.size };
       }
     }
     this.ws.invalidate();
-    this.findings = this.ws.check();
+    const whole = this.ws.checkGathering();
+    this.gatheredBy.clear();
+    this.refreshLayer(whole.gathered, () => true, () => true);
+    this.findings = sortFindings([...whole.findings, ...this.layer]);
     this.fullModel = this.linkModel = this.ws.model();
     this.needFull = false;
     return { findings: this.findings, affected: "all", changed, scope: "full", ms: performance.now() - t0 };
+  }
+
+  /**
+   * The workspace checks (rules/api.ts WorkspaceCheck) compare items across files no relation
+   * links, so a scoped re-check cannot conclude them on its part of the workspace. The engine
+   * keeps what they gathered per file instead: a re-check replaces the items at the places it
+   * re-checked (`wasOwned` before the edit, `isOwned` after), the others move with the edit
+   * (`shift`), and the checks conclude again over everything. Returns the files whose
+   * workspace-check findings changed (where they are and where their related places are).
+   */
+  private refreshLayer(gathered: Map<string, GatheredItem[]>, wasOwned: (r: Range) => boolean, isOwned: (r: Range) => boolean, shift?: (r: Range) => Range): Set<string> {
+    for (const byFile of this.gatheredBy.values()) {
+      for (const [file, items] of byFile) {
+        const kept = items.filter((it) => !wasOwned(it.range)).map((it) => (shift ? { ...it, range: shift(it.range) } : it));
+        if (kept.length) byFile.set(file, kept);
+        else byFile.delete(file);
+      }
+    }
+    for (const [id, items] of gathered) {
+      let byFile = this.gatheredBy.get(id);
+      if (!byFile) this.gatheredBy.set(id, (byFile = new Map()));
+      for (const it of items) {
+        if (!isOwned(it.range)) continue;
+        const a = byFile.get(it.range.file);
+        if (a) a.push(it);
+        else byFile.set(it.range.file, [it]);
+      }
+    }
+    const all = new Map<string, GatheredItem[]>();
+    for (const [id, byFile] of this.gatheredBy) all.set(id, [...byFile.values()].flat());
+    const raw = withSeverity(concludeWorkspace(all), this.ws.config);
+    const sup = new Map<string, Suppression[]>();
+    for (const f of raw) {
+      const s = this.ws.facts(f.range.file)?.extra.suppressions as Suppression[] | undefined;
+      if (s?.length) sup.set(f.range.file, s);
+    }
+    const next = unsuppressed(raw, sup);
+    const key = (f: Finding) => `${f.rule}|${f.range.file}|${f.range.line}|${f.range.col}|${f.range.endLine}|${f.range.endCol}|${f.message}|${f.related.map((r) => `${r.range.file}:${r.range.line}:${r.range.col}`).join(",")}`;
+    const before = new Set(this.layer.map(key));
+    const after = new Set(next.map(key));
+    const changed = new Set<string>();
+    for (const f of this.layer) if (!after.has(key(f))) [f.range, ...f.related.map((r) => r.range)].forEach((r) => changed.add(r.file));
+    for (const f of next) if (!before.has(key(f))) [f.range, ...f.related.map((r) => r.range)].forEach((r) => changed.add(r.file));
+    this.layer = next;
+    return changed;
   }
 
   /** The whole-workspace model (rebuilt lazily after edits; cheap: facts are cached). */
@@ -443,7 +526,7 @@ export class Engine {
       if (fromItems(facts, order)) {
         k = { decl: new Set(), use: new Set() };
         for (const e of order) {
-          const ik = itemKeys(e.item);
+          const ik = itemKeys(e.item, localOf(facts));
           for (const x of ik.decl) k.decl.add(x);
           for (const x of ik.use) k.use.add(x);
         }
@@ -511,7 +594,7 @@ export class Engine {
       // (an item without facts — a const that is no integer, say — changes nothing; integer
       // consts are part of every item's cache key)
       if (!it.fns.length && !it.types.length && !it.asserts.length) continue;
-      const k = itemKeys(it);
+      const k = itemKeys(it, dropped.includes(it) ? localOf(before) : localOf(after));
       // a helper (no name the seam links) can change what the functions calling it do
       if (![...k.decl].some((x) => !x.startsWith("r:")) || it.fns.some((fn) => (fn as { internal?: boolean }).internal)) return undefined;
       k.decl.forEach((x) => kDecl.add(x));
@@ -520,12 +603,12 @@ export class Engine {
     const touches = (k: { decl: Set<string>; use: Set<string> }) => touchesKeys(k, { decl: kDecl, use: kUse });
     // Items of this file to re-check: the changed ones and those sharing a name with them.
     const dirtyItems = new Set<CachedItem>(fresh);
-    for (const e of newOrder) if (touches(itemKeys(e.item))) dirtyItems.add(e.item);
+    for (const e of newOrder) if (touches(itemKeys(e.item, localOf(after)))) dirtyItems.add(e.item);
     const dirtyOld = new Set<CachedItem>(dropped);
     for (const [o, n] of claimed) if (dirtyItems.has(n)) dirtyOld.add(o);
     // Other files whose findings can change: those that declare or use a name of a re-checked item.
     const affected = new Set<string>();
-    for (const it of [...dirtyItems].concat(dropped)) this.relatedTo(itemKeys(it), affected);
+    for (const it of [...dirtyItems].concat(dropped)) this.relatedTo(itemKeys(it, dropped.includes(it) ? localOf(before) : localOf(after)), affected);
     const inRows = (line: number, items: Iterable<CachedItem>) => !!itemAt(line, items);
     for (const f of this.findings) {
       const here = (f.range.file === file && inRows(f.range.line, dirtyOld)) || f.related.some((r) => r.range.file === file && inRows(r.range.line, dirtyOld));
@@ -624,7 +707,7 @@ export class Engine {
     const choose = (it: CachedItem) => {
       if (chosen.has(it)) return false;
       chosen.add(it);
-      itemKeys(it).use.forEach((x) => wanted.add(x));
+      itemKeys(it, localOf(facts)).use.forEach((x) => wanted.add(x));
       return true;
     };
     const anyIn = (xs: Set<string>, set: Set<string>) => {
@@ -633,14 +716,14 @@ export class Engine {
     };
     for (const e of order) {
       const it = e.item;
-      const k = itemKeys(it);
+      const k = itemKeys(it, localOf(facts));
       // helpers (items that declare no linked name, only `r:` helper names) always come along
       const helper = ![...k.decl].some((x) => !x.startsWith("r:"));
       if (dirty.has(it) || helper || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
     }
     for (let grew = true; grew;) {
       grew = false;
-      for (const e of order) if (!chosen.has(e.item) && anyIn(itemKeys(e.item).decl, wanted)) grew = choose(e.item) || grew;
+      for (const e of order) if (!chosen.has(e.item) && anyIn(itemKeys(e.item, localOf(facts)).decl, wanted)) grew = choose(e.item) || grew;
     }
     for (const x of wanted) {
       this.decl.get(x)?.forEach((f) => {
@@ -683,7 +766,7 @@ export class Engine {
       const facts = this.ws.facts(r);
       if (!order || !facts || facts.lang !== "rust" || facts.notices.length || facts.extra.suppressions || !fromItems(facts, order)) continue;
       const dirty = new Set<CachedItem>();
-      for (const e of order) if (touchesKeys(itemKeys(e.item), K)) dirty.add(e.item);
+      for (const e of order) if (touchesKeys(itemKeys(e.item, localOf(facts)), K)) dirty.add(e.item);
       let ok = true;
       const items = order.map((e) => e.item);
       for (const f of this.findings) {
@@ -707,7 +790,7 @@ export class Engine {
       const k = this.fileKeys.get(f);
       if (k) this.relatedTo(k, context);
     }
-    for (const dirty of partial.values()) for (const it of dirty) this.relatedTo(itemKeys(it), context);
+    for (const [r, dirty] of partial) for (const it of dirty) this.relatedTo(itemKeys(it, localOf(this.ws.facts(r))), context);
     for (const r of partial.keys()) context.delete(r);
     this.withIncludes(context);
     const replace = new Map<string, FileFacts>();

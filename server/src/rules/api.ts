@@ -49,9 +49,16 @@ export interface RuleFamily {
  * one model of everything, the result is `conclude(gather(model))`.
  */
 export interface WorkspaceCheck {
+  /** The rule id of its findings. */
   id: string;
-  gather(model: Model): unknown[];
-  conclude(items: unknown[]): Finding[];
+  gather(model: Model): GatheredItem[];
+  conclude(items: GatheredItem[]): Finding[];
+}
+
+/** What a workspace check gathers about one item: plain data, anchored at the place its finding
+ * would be (the language server keeps items by that file, and moves them with edits). */
+export interface GatheredItem {
+  range: Range;
 }
 
 /** "" when a difference holds on every checked target, else " (on armv7, i686 only)". */

@@ -2,7 +2,7 @@
 // other families' results stand.
 
 import type { Model } from "../model/boundary.js";
-import type { Finding, RuleFamily, RuleMeta } from "./api.js";
+import type { Finding, GatheredItem, RuleFamily, RuleMeta } from "./api.js";
 import { symbolsFamily } from "./symbols.js";
 import { signaturesFamily } from "./signatures.js";
 import { ffiSafetyFamily } from "./ffi-safety.js";
@@ -65,7 +65,7 @@ function failed(what: string, e: unknown, file: string): Finding {
 
 /** A family's findings on one model; with `gathered`, its workspace checks only gather into it
  * (keyed by check id) and conclude later (concludeWorkspace). */
-export function runFamily(f: RuleFamily, model: Model, gathered?: Map<string, unknown[]>): Finding[] {
+export function runFamily(f: RuleFamily, model: Model, gathered?: Map<string, GatheredItem[]>): Finding[] {
   const anyFile = () => model.files.keys().next().value ?? "";
   let out: Finding[];
   try {
@@ -92,7 +92,7 @@ export function runFamily(f: RuleFamily, model: Model, gathered?: Map<string, un
 
 /** Findings of every family on one model. With `gathered` (a check in chunks), the workspace
  * checks gather into it instead of concluding; call concludeWorkspace once every chunk ran. */
-export function runRules(model: Model, families: RuleFamily[] = FAMILIES, gathered?: Map<string, unknown[]>): Finding[] {
+export function runRules(model: Model, families: RuleFamily[] = FAMILIES, gathered?: Map<string, GatheredItem[]>): Finding[] {
   const out: Finding[] = [];
   for (const f of model.files.values()) {
     for (const n of f.notices) out.push({ rule: n.rule, severity: n.severity, message: n.message, range: n.range, related: [] });
@@ -102,7 +102,7 @@ export function runRules(model: Model, families: RuleFamily[] = FAMILIES, gather
 }
 
 /** The findings of the workspace checks from what every chunk gathered. */
-export function concludeWorkspace(gathered: Map<string, unknown[]>, families: RuleFamily[] = FAMILIES): Finding[] {
+export function concludeWorkspace(gathered: ReadonlyMap<string, GatheredItem[]>, families: RuleFamily[] = FAMILIES): Finding[] {
   const out: Finding[] = [];
   for (const fam of families) {
     for (const w of fam.workspace ?? []) {
@@ -116,4 +116,9 @@ export function concludeWorkspace(gathered: Map<string, unknown[]>, families: Ru
   return out;
 }
 
-export type { Finding, RuleFamily, RuleMeta };
+/** The rule ids of the workspace checks (rules/api.ts WorkspaceCheck). */
+export function workspaceCheckIds(families: RuleFamily[] = FAMILIES): Set<string> {
+  return new Set(families.flatMap((f) => (f.workspace ?? []).map((w) => w.id)));
+}
+
+export type { Finding, GatheredItem, RuleFamily, RuleMeta };

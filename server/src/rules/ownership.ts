@@ -20,7 +20,7 @@ import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range } from "../model/types.js";
 import type { CArg, CClass, CEvent, CFlow, COwnFacts, CRef, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl } from "../model/ownership.js";
-import { finding, type Finding, type Related, type RuleFamily, type RuleMeta } from "./api.js";
+import { finding, type Finding, type GatheredItem, type Related, type RuleFamily, type RuleMeta } from "./api.js";
 
 // ------------------------------------------------------------------ rule metadata
 
@@ -434,7 +434,7 @@ function voidHandlePlaces(model: Model): VoidHandlePlace[] {
 
 /** Every C handle type that reaches Rust as `*mut c_void`, anywhere in the workspace: a workspace
  * check (rules/api.ts WorkspaceCheck), since the places share no names. */
-function indistinctFindings(items: unknown[]): Finding[] {
+function indistinctFindings(items: GatheredItem[]): Finding[] {
   const byType = new Map<string, VoidHandlePlace[]>();
   for (const p of items as VoidHandlePlace[]) {
     const a = byType.get(p.ctype) ?? [];
