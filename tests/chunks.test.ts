@@ -10,6 +10,7 @@ import * as fs from "node:fs";
 import * as os from "node:os";
 import * as path from "node:path";
 import { fileURLToPath } from "node:url";
+import { spawnSync } from "node:child_process";
 import { Workspace, listSources } from "../server/src/analysis/workspace.js";
 import { planChunks } from "../server/src/analysis/chunks.js";
 import { packFacts, unpackFacts } from "../server/src/analysis/packed.js";
@@ -118,6 +119,21 @@ describe("chunked check = whole check", () => {
     expect((await chunked([ws], 1)).findings).toEqual(w2);
   }, 60_000);
 
+  test("the shipped CLI with two worker threads (packed, compressed, moved between threads)", async () => {
+    // all fixtures as one workspace, in chunks of one group: exactly the whole check's findings
+    const r = spawnSync(process.execPath, [path.join(ROOT, "bin/ferrule.js"), "check", "--format", "json", FIX], {
+      encoding: "utf8", timeout: 120_000, env: { ...process.env, FERRULE_WORKERS: "2", FERRULE_CHUNK_FILES: "1", FERRULE_TIMINGS: "1" },
+    });
+    expect(r.status).toBe(1);
+    expect(r.stderr).toMatch(/in [2-9]\d+ chunk\(s\)/);
+    const got = (JSON.parse(r.stdout).findings as { rule: string; file: string; line: number; column: number; message: string }[]).map((f) => `${f.rule}|${f.file}|${f.line}:${f.column}|${f.message}`);
+    const ws = await Workspace.create();
+    ws.loadAll([FIX]);
+    const want = ws.check().map((f) => `${f.rule}|${path.relative(process.cwd(), f.range.file)}|${f.range.line + 1}:${f.range.col + 1}|${f.message}`);
+    expect(got.length).toBeGreaterThan(100);
+    expect(got.sort()).toEqual(want.sort());
+  }, 240_000);
+
   test("random sets of fixture files (fast-check)", async () => {
     const all = listSources([FIX]).files;
     const runs = Number(process.env.FERRULE_FUZZ_RUNS) || 12;
@@ -169,9 +185,11 @@ describe("packed facts and the heap budget", () => {
     const file = path.join(FIX, "sonar-demo", "kernels", "src", "lib.rs");
     const facts = extractFile(file, fs.readFileSync(file, "utf8"));
     const p = packFacts(facts, "h");
-    expect(unpackFacts(p.packed)).toEqual(facts);
+    expect(unpackFacts(p)).toEqual(facts);
+    expect(p.facts).toBeUndefined();
     expect(p.decl.length).toBeGreaterThan(3);
-    expect(p.packed.byteLength).toBe(p.packed.buffer.byteLength); // owns its buffer: transferable
+    expect(p.packed!.byteLength).toBe(p.packed!.buffer.byteLength); // owns its buffer: transferable
+    expect(unpackFacts(packFacts(facts, "h", false))).toBe(facts); // read in this thread: kept as is
   });
 
   test("the collector is reachable and a budget collects garbage", () => {

@@ -13,7 +13,7 @@ import { suppressionsOf, type Suppression } from "./suppress.js";
 import { fixesFor, type Fix } from "../fixes/index.js";
 import type { FerruleConfig } from "./config.js";
 import { finishFindings } from "./finish.js";
-import { unpackFacts } from "./packed.js";
+import { unpackFacts, type PackedFile } from "./packed.js";
 
 export interface PlanInput {
   file: string;
@@ -113,10 +113,9 @@ export interface ChunkResult {
   fixes?: Fix[][];
 }
 
-/** Checks one chunk of packed files with a model of those files only (see analysis/chunks.ts). */
 /** Checks one chunk of packed files with a model of those files only (see planChunks); the
  * workspace checks (rules/api.ts WorkspaceCheck) gather into `gathered`. */
-export function checkChunk(chunk: readonly Uint8Array[], ctx: ChunkContext, gathered: Map<string, GatheredItem[]>, includeIndex = IncludeIndex.of(ctx.files, ctx.config.includePaths)): ChunkResult {
+export function checkChunk(chunk: readonly PackedFile[], ctx: ChunkContext, gathered: Map<string, GatheredItem[]>, includeIndex = IncludeIndex.of(ctx.files, ctx.config.includePaths)): ChunkResult {
   const facts = chunk.map((b) => unpackFacts(b));
   const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex });
   const findings = finishFindings(runRules(model, FAMILIES, gathered), model, ctx.config);

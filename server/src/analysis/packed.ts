@@ -21,12 +21,15 @@ export interface PackedFile {
   use: string[];
   /** The `#include "…"` paths as written (system includes left out). */
   includes: string[];
-  packed: Uint8Array;
+  /** The facts, compressed (made on a worker thread, moved to the main thread)… */
+  packed?: Uint8Array;
+  /** …or as they are (read in this thread: a workspace too small for worker threads, where
+   * packing would cost time and save nothing that matters). */
+  facts?: FileFacts;
 }
 
-export function packFacts(facts: FileFacts, hash: string): PackedFile {
+export function packFacts(facts: FileFacts, hash: string, compress = true): PackedFile {
   const k = keysOf(facts);
-  const z = zlib.deflateRawSync(v8.serialize(facts), { level: 1 });
   return {
     file: facts.file,
     hash,
@@ -35,10 +38,10 @@ export function packFacts(facts: FileFacts, hash: string): PackedFile {
     use: [...k.use],
     includes: facts.includes.filter((i) => !i.system).map((i) => i.path),
     // a buffer of its own, so it can be transferred between threads
-    packed: new Uint8Array(z),
+    ...(compress ? { packed: new Uint8Array(zlib.deflateRawSync(v8.serialize(facts), { level: 1 })) } : { facts }),
   };
 }
 
-export function unpackFacts(packed: Uint8Array): FileFacts {
-  return v8.deserialize(zlib.inflateRawSync(packed)) as FileFacts;
+export function unpackFacts(p: PackedFile): FileFacts {
+  return p.facts ?? (v8.deserialize(zlib.inflateRawSync(p.packed!)) as FileFacts);
 }

@@ -113,14 +113,14 @@ export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode">)
     script: opts.script,
     data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined },
     batch: BATCH,
-    local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros),
+    local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false),
     onProgress: opts.onProgress,
   });
 }
 
-function packOne(file: string, maxFileBytes: number, stripMacros?: readonly string[]): PackedFile {
+function packOne(file: string, maxFileBytes: number, stripMacros: readonly string[] | undefined, compress: boolean): PackedFile {
   const r = readFacts(file, maxFileBytes, "extract", stripMacros);
-  return packFacts(r.facts, r.hash);
+  return packFacts(r.facts, r.hash, compress);
 }
 
 interface PoolJob<I, R> {
@@ -213,8 +213,8 @@ export function runWorkerIfAsked(): boolean {
   if (mode === "pack") {
     // packed facts are moved, not copied (their buffers are transferred)
     serve = (items) => {
-      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros));
-      return { out, moved: out.map((p) => p.packed.buffer as ArrayBuffer) };
+      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros, true));
+      return { out, moved: out.map((p) => p.packed!.buffer as ArrayBuffer) };
     };
   } else {
     serve = (items) => ({ out: (items as string[]).map((f) => readFacts(f, data.maxFileBytes, mode, data.stripMacros)), moved: [] });

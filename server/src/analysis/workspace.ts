@@ -245,8 +245,8 @@ export class Workspace {
     const includeIndex = IncludeIndex.of(walk.files, this.config.includePaths);
     const sides = { rust: packed.some((p) => p.lang === "rust"), c: packed.some((p) => p.lang !== "rust") };
     const plan = planChunks(packed, includeIndex, Math.max(1, opts.chunkFiles ?? 100));
-    const chunks = plan.map((c) => c.map((i) => packed[i]!.packed));
-    packed.length = 0; // the buffers now live in `chunks` only, and move to whoever checks them
+    const chunks = plan.map((c) => c.map((i) => packed[i]!));
+    packed.length = 0; // the files now live in `chunks` only, each let go once checked
     opts.onPhase?.("plan");
     const ctx = { config: this.config, files: walk.files, sides, withFixes: !!opts.withFixes };
     // Checked in this thread, one chunk at a time. (Checking chunks on worker threads was measured
@@ -257,7 +257,7 @@ export class Workspace {
     const suppressions = new Map<string, Suppression[]>();
     const results = chunks.map((c, i) => {
       const r = checkChunk(c, ctx, gathered, includeIndex);
-      chunks[i] = []; // let this chunk's buffers go
+      chunks[i] = []; // let this chunk's facts go
       r.suppressions.forEach((v, k) => suppressions.set(k, v));
       budget.step();
       return r;
