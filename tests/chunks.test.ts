@@ -119,19 +119,21 @@ describe("chunked check = whole check", () => {
     expect((await chunked([ws], 1)).findings).toEqual(w2);
   }, 60_000);
 
-  test("the shipped CLI with two worker threads (packed, compressed, moved between threads)", async () => {
+  test("the shipped CLI with two worker threads, facts compressed or sent as they are", async () => {
     // all fixtures as one workspace, in chunks of one group: exactly the whole check's findings
-    const r = spawnSync(process.execPath, [path.join(ROOT, "bin/ferrule.js"), "check", "--format", "json", FIX], {
-      encoding: "utf8", timeout: 120_000, env: { ...process.env, FERRULE_WORKERS: "2", FERRULE_CHUNK_FILES: "1", FERRULE_TIMINGS: "1" },
-    });
-    expect(r.status).toBe(1);
-    expect(r.stderr).toMatch(/in [2-9]\d+ chunk\(s\)/);
-    const got = (JSON.parse(r.stdout).findings as { rule: string; file: string; line: number; column: number; message: string }[]).map((f) => `${f.rule}|${f.file}|${f.line}:${f.column}|${f.message}`);
     const ws = await Workspace.create();
     ws.loadAll([FIX]);
-    const want = ws.check().map((f) => `${f.rule}|${path.relative(process.cwd(), f.range.file)}|${f.range.line + 1}:${f.range.col + 1}|${f.message}`);
-    expect(got.length).toBeGreaterThan(100);
-    expect(got.sort()).toEqual(want.sort());
+    const want = ws.check().map((f) => `${f.rule}|${path.relative(process.cwd(), f.range.file)}|${f.range.line + 1}:${f.range.col + 1}|${f.message}`).sort();
+    expect(want.length).toBeGreaterThan(100);
+    for (const pack of ["1", "0"]) {
+      const r = spawnSync(process.execPath, [path.join(ROOT, "bin/ferrule.js"), "check", "--format", "json", FIX], {
+        encoding: "utf8", timeout: 120_000, env: { ...process.env, FERRULE_WORKERS: "2", FERRULE_CHUNK_FILES: "1", FERRULE_TIMINGS: "1", FERRULE_PACK: pack },
+      });
+      expect(r.status).toBe(1);
+      expect(r.stderr).toMatch(/in [2-9]\d+ chunk\(s\)/);
+      const got = (JSON.parse(r.stdout).findings as { rule: string; file: string; line: number; column: number; message: string }[]).map((f) => `${f.rule}|${f.file}|${f.line}:${f.column}|${f.message}`);
+      expect(got.sort(), `FERRULE_PACK=${pack}`).toEqual(want);
+    }
   }, 240_000);
 
   test("random sets of fixture files (fast-check)", async () => {

@@ -106,14 +106,19 @@ export function loadFiles(files: string[], opts: ParallelOptions): Promise<Loade
 }
 
 /** Reads and extracts every file into packed form (see analysis/packed.ts); in the order of `files`. */
-export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode">): Promise<PackedFile[]> {
+export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> & { compress: boolean }): Promise<PackedFile[]> {
+  const pool = new Map<string, string>();
   return runPool<string, PackedFile>(files, {
     mode: "pack",
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
-    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined },
+    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress },
     batch: BATCH,
     local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false),
+    // facts sent as they are (a structured clone): one copy of each repeated string
+    receive: (r) => {
+      if (r.facts) shareStrings(r.facts, pool);
+    },
     onProgress: opts.onProgress,
   });
 }
@@ -205,7 +210,7 @@ async function runPool<I, R>(items: I[], job: PoolJob<I, R>): Promise<R[]> {
 export function runWorkerIfAsked(): boolean {
   if (isMainThread || !parentPort || (workerData as { tag?: string } | null)?.tag !== WORKER_TAG) return false;
   const port = parentPort;
-  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[] };
+  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[]; compress?: boolean };
   const mode = data.mode;
   // the heap of a worker that packs its results holds only garbage between batches
   const budget = new HeapBudget(32);
@@ -213,8 +218,8 @@ export function runWorkerIfAsked(): boolean {
   if (mode === "pack") {
     // packed facts are moved, not copied (their buffers are transferred)
     serve = (items) => {
-      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros, true));
-      return { out, moved: out.map((p) => p.packed!.buffer as ArrayBuffer) };
+      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros, !!data.compress));
+      return { out, moved: out.flatMap((p) => (p.packed ? [p.packed.buffer as ArrayBuffer] : [])) };
     };
   } else {
     serve = (items) => ({ out: (items as string[]).map((f) => readFacts(f, data.maxFileBytes, mode, data.stripMacros)), moved: [] });
@@ -227,7 +232,7 @@ export function runWorkerIfAsked(): boolean {
       }
       const { out, moved } = serve(m.items);
       port.postMessage({ start: m.start, out }, moved);
-      if (mode === "pack") budget.step();
+      if (mode === "pack" && data.compress) budget.step();
     });
     port.postMessage({ ready: true });
   });
