@@ -250,15 +250,19 @@ export class Workspace {
       else sides.c = true;
       if (sides.rust && sides.c) break;
     }
-    const model = new Model(facts, { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families, workspaceSides: sides });
+    // includes resolve against the whole workspace, as in the full model (a header name that is
+    // unique in the part may not be unique in the workspace)
+    const includeIndex = new IncludeIndex((f) => this.entries.has(f), () => this.entries.keys(), this.config.includePaths);
+    const model = new Model(facts, { targets: this.config.targets, includePaths: this.config.includePaths, families: this.config.families, workspaceSides: sides, includeIndex });
     return { findings: this.finish(runRules(model, FAMILIES, gathered), model), model };
   }
 
   /**
    * The CLI's check of a workspace in chunks (see analysis/chunks.ts): workers read and extract
    * every file into packed facts (analysis/packed.ts); the files are grouped by what the rules can
-   * relate, and each chunk of groups is unpacked, linked and checked on its own, then dropped. The findings are those `check()` gives after loading
-   * everything; the facts are not kept, so `model()` and `check()` do not see these files.
+   * relate, and each chunk of groups is unpacked, linked and checked on its own, then dropped.
+   * The findings are those `check()` gives after loading everything; the facts are not kept, so
+   * `model()` and `check()` do not see these files.
    */
   async checkChunked(paths: string[], opts: { script?: string; workers?: number; chunkFiles?: number; withFixes?: boolean; onProgress?: (n: number, total: number) => void; onPhase?: (name: string) => void } = {}): Promise<{ findings: Finding[]; fixes: Map<Finding, Fix[]>; files: number; chunks: number; largestChunk: number }> {
     const walk = listSources(paths, this.config.exclude, undefined, [...paths, ...this.config.includePaths]);
