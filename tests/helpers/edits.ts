@@ -25,3 +25,15 @@ export function applyEdits(texts: Record<string, string>, edits: TextEdit[]): Re
   }
   return out;
 }
+
+/** The LSP change that replaces the first `from` in `text` by `to` (a range in lines and UTF-16
+ * characters), and the text after it. */
+export function replaceFirst(text: string, from: string, to: string): { range: { start: { line: number; character: number }; end: { line: number; character: number } }; text: string; after: string; at: number } {
+  const at = text.indexOf(from);
+  if (at < 0) throw new Error(`not found: ${from}`);
+  const before = text.slice(0, at).split("\n");
+  const start = { line: before.length - 1, character: before[before.length - 1]!.length };
+  const fromLines = from.split("\n");
+  const end = fromLines.length === 1 ? { line: start.line, character: start.character + from.length } : { line: start.line + fromLines.length - 1, character: fromLines[fromLines.length - 1]!.length };
+  return { range: { start, end }, text: to, after: text.slice(0, at) + to + text.slice(at + from.length), at };
+}

@@ -11,6 +11,7 @@ import { Workspace } from "../../server/src/analysis/workspace.js";
 import { extractFile } from "../../server/src/extract/index.js";
 import { Engine, offsetAt } from "../../server/src/lsp/engine.js";
 import type { Finding } from "../../server/src/rules/api.js";
+import { replaceFirst } from "../helpers/edits.js";
 
 const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../..");
 const DEMO = path.join(ROOT, "test-fixtures/sonar-demo");
@@ -59,16 +60,11 @@ describe("incremental re-analysis equals a fresh analysis", () => {
     const scopes: string[] = [];
     for (const [file, from, to] of EDITS) {
       const t = texts.get(file)!;
-      const at = t.indexOf(from);
-      expect(at, from).toBeGreaterThanOrEqual(0);
-      const before = t.slice(0, at).split("\n");
-      const start = { line: before.length - 1, character: before[before.length - 1]!.length };
-      const fromLines = from.split("\n");
-      const end = fromLines.length === 1 ? { line: start.line, character: start.character + from.length } : { line: start.line + fromLines.length - 1, character: fromLines[fromLines.length - 1]!.length };
+      const c = replaceFirst(t, from, to);
       const doc = engine.docs.get(file)!;
-      expect(offsetAt(doc, start)).toBe(at);
-      engine.change(file, [{ range: { start, end }, text: to }], ++version);
-      const nt = t.slice(0, at) + to + t.slice(at + from.length);
+      expect(offsetAt(doc, c.range.start)).toBe(c.at);
+      engine.change(file, [{ range: c.range, text: to }], ++version);
+      const nt = c.after;
       texts.set(file, nt);
       expect(engine.docs.get(file)!.text).toBe(nt);
       const res = engine.analyze();

@@ -12,6 +12,7 @@ import * as path from "node:path";
 import { Workspace } from "../../server/src/analysis/workspace.js";
 import { Engine } from "../../server/src/lsp/engine.js";
 import type { Finding } from "../../server/src/rules/api.js";
+import { replaceFirst } from "../helpers/edits.js";
 
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-wscheck-"));
 afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
@@ -66,15 +67,9 @@ describe("workspace checks in the language server", () => {
     engine.analyze();
     let version = 1;
     const edit = async (file: string, from: string, to: string) => {
-      const t = texts.get(file)!;
-      const at = t.indexOf(from);
-      expect(at, from).toBeGreaterThanOrEqual(0);
-      const pre = t.slice(0, at).split("\n");
-      const start = { line: pre.length - 1, character: pre[pre.length - 1]!.length };
-      const fl = from.split("\n");
-      const end = fl.length === 1 ? { line: start.line, character: start.character + from.length } : { line: start.line + fl.length - 1, character: fl[fl.length - 1]!.length };
-      engine.change(file, [{ range: { start, end }, text: to }], ++version);
-      texts.set(file, t.slice(0, at) + to + t.slice(at + from.length));
+      const c = replaceFirst(texts.get(file)!, from, to);
+      engine.change(file, [{ range: c.range, text: to }], ++version);
+      texts.set(file, c.after);
       const res = engine.analyze();
       const fresh = await Workspace.create();
       fresh.loadAll([dir]);
