@@ -1,8 +1,10 @@
 // Which files the CLI's chunked check reads together. Files are joined when the rules can look
 // from one to the other, by the same relation the language server's scoped re-check uses
 // (analysis/keys.ts): one declares a name the other declares or uses, both use one type, or one
-// includes the other. The connected groups of that relation are closed: a finding in a group
-// depends only on files of the group. Groups are packed in workspace order into chunks of at most
+// includes the other (a Rust helper name joins a caller to its declarers, not two declarers to
+// each other). The connected groups of that relation are closed: a finding in a group depends
+// only on files of the group — except the workspace checks' (rules/api.ts WorkspaceCheck), which
+// gather per chunk and conclude once every chunk ran. Groups are packed in workspace order into chunks of at most
 // `maxFiles` files (a larger group is a chunk of its own), and each chunk is checked with a model
 // of its files only, so memory holds one chunk's facts at a time.
 

@@ -98,7 +98,6 @@ export function loadFiles(files: string[], opts: ParallelOptions): Promise<Loade
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
     data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined },
-    batch: BATCH,
     local: (f) => readFacts(f, opts.maxFileBytes, mode, opts.stripMacros),
     receive: (r) => shareStrings(r, pool), // one copy of each repeated string (see share-strings.ts)
     onProgress: opts.onProgress,
@@ -113,7 +112,6 @@ export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> 
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
     data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress },
-    batch: BATCH,
     local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false),
     // facts sent as they are (a structured clone): one copy of each repeated string
     receive: (r) => {
@@ -134,11 +132,8 @@ interface PoolJob<I, R> {
   script?: string;
   /** Handed to every worker (structured clone). */
   data: Record<string, unknown>;
-  batch: number;
   /** Does one item in this thread (no workers, or a worker died with it). */
   local: (item: I) => R;
-  /** Buffers of the items to move rather than copy. */
-  transfer?: (items: I[]) => ArrayBuffer[];
   receive?: (r: R) => void;
   onProgress?: (done: number, total: number) => void;
 }
@@ -172,13 +167,11 @@ async function runPool<I, R>(items: I[], job: PoolJob<I, R>): Promise<R[]> {
           return;
         }
         const start = next;
-        next = Math.min(items.length, next + job.batch);
-        const batch = items.slice(start, next);
-        w.postMessage({ start, items: batch }, job.transfer?.(batch) ?? []);
+        next = Math.min(items.length, next + BATCH);
+        w.postMessage({ start, items: items.slice(start, next) });
       };
-      const young = Number(process.env.FERRULE_WORKER_YOUNG_MB) || WORKER_YOUNG_MIB;
       for (let i = 0; i < n; i++) {
-        const w = new Worker(job.script!, { workerData: { tag: WORKER_TAG, mode: job.mode, ...job.data }, resourceLimits: { maxYoungGenerationSizeMb: young } });
+        const w = new Worker(job.script!, { workerData: { tag: WORKER_TAG, mode: job.mode, ...job.data }, resourceLimits: { maxYoungGenerationSizeMb: WORKER_YOUNG_MIB } });
         workers.push(w);
         w.on("message", (m: { ready?: boolean; start?: number; out?: R[] }) => {
           feed(w); // the next batch first, so the worker is not kept waiting while these are stored
