@@ -8,7 +8,7 @@
 // `maxFiles` files (a larger group is a chunk of its own), and each chunk is checked with a model
 // of its files only, so memory holds one chunk's facts at a time.
 
-import { IncludeIndex } from "../model/includes.js";
+import type { IncludeIndex } from "../model/includes.js";
 import { Model, type Side } from "../model/boundary.js";
 import { FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
 import { suppressionsOf, type Suppression } from "./suppress.js";
@@ -100,8 +100,8 @@ export function planChunks(files: readonly PlanInput[], includes: IncludeIndex, 
 /** What a chunk check needs besides the chunk (see checkChunk). */
 export interface ChunkContext {
   config: FerruleConfig;
-  /** Every file of the workspace, for include resolution. */
-  files: string[];
+  /** Include resolution against the whole workspace. */
+  includeIndex: IncludeIndex;
   sides: Record<Side, boolean>;
   /** Also compute each finding's fixes (`ferrule check --show-fixes`). */
   withFixes: boolean;
@@ -117,9 +117,9 @@ export interface ChunkResult {
 
 /** Checks one chunk of packed files with a model of those files only (see planChunks); the
  * workspace checks (rules/api.ts WorkspaceCheck) gather into `gathered`. */
-export function checkChunk(chunk: readonly PackedFile[], ctx: ChunkContext, gathered: Map<string, GatheredItem[]>, includeIndex = IncludeIndex.of(ctx.files, ctx.config.includePaths)): ChunkResult {
+export function checkChunk(chunk: readonly PackedFile[], ctx: ChunkContext, gathered: Map<string, GatheredItem[]>): ChunkResult {
   const facts = chunk.map((b) => unpackFacts(b));
-  const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex });
+  const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex: ctx.includeIndex });
   const findings = finishFindings(runRules(model, FAMILIES, gathered), model, ctx.config);
   return { findings, suppressions: suppressionsOf(model), fixes: ctx.withFixes ? findings.map((f) => fixesFor(f, model)) : undefined };
 }

@@ -4,7 +4,8 @@
 import type { Model } from "../model/boundary.js";
 import type { Finding } from "../rules/index.js";
 import type { FerruleConfig } from "./config.js";
-import { applySuppressions } from "./suppress.js";
+import { applySuppressions, unsuppressed, type Suppression } from "./suppress.js";
+import { concludeWorkspace, type GatheredItem } from "../rules/index.js";
 
 export function finishFindings(raw: Finding[], model: Model, config: Pick<FerruleConfig, "severity">): Finding[] {
   return sortFindings(dedupe(applySuppressions(withSeverity(raw, config), model)));
@@ -31,4 +32,17 @@ export function dedupe(fs_: Finding[]): Finding[] {
 
 export function sortFindings(out: Finding[]): Finding[] {
   return out.sort((a, b) => a.range.file.localeCompare(b.range.file) || a.range.line - b.range.line || a.range.col - b.range.col || a.rule.localeCompare(b.rule) || a.message.localeCompare(b.message));
+}
+
+/** The workspace checks' findings (rules/api.ts WorkspaceCheck) from everything gathered, with
+ * severity overrides and the suppressions of the files they land in (`suppressionsIn`). Used by
+ * the CLI's chunked check and the language server, which no longer hold those files' model. */
+export function concludeFinished(gathered: ReadonlyMap<string, GatheredItem[]>, config: Pick<FerruleConfig, "severity">, suppressionsIn: (file: string) => Suppression[] | undefined): Finding[] {
+  const raw = withSeverity(concludeWorkspace(gathered), config);
+  const byFile = new Map<string, Suppression[]>();
+  for (const f of raw) {
+    const s = suppressionsIn(f.range.file);
+    if (s?.length) byFile.set(f.range.file, s);
+  }
+  return unsuppressed(raw, byFile);
 }

@@ -9,10 +9,10 @@ import { extractFile, initParsers, type ExtractOptions, skippedFacts } from "../
 import { langOf } from "../parse/parser.js";
 import { DEFAULT_CONFIG, Model } from "../model/boundary.js";
 import type { FileFacts } from "../model/types.js";
-import { concludeWorkspace, FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
+import { FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
 import { DEFAULTS, type FerruleConfig } from "./config.js";
-import { dedupe, finishFindings, sortFindings, withSeverity } from "./finish.js";
-import { unsuppressed, type Suppression } from "./suppress.js";
+import { concludeFinished, dedupe, finishFindings, sortFindings } from "./finish.js";
+import type { Suppression } from "./suppress.js";
 import { loadFiles, loadPacked } from "./parallel.js";
 import { HeapBudget } from "./memory.js";
 import { checkChunk, planChunks } from "./chunks.js";
@@ -275,7 +275,7 @@ export class Workspace {
     const chunks = plan.map((c) => c.map((i) => packed[i]!));
     packed.length = 0; // the files now live in `chunks` only, each let go once checked
     opts.onPhase?.("plan");
-    const ctx = { config: this.config, files: walk.files, sides, withFixes: !!opts.withFixes };
+    const ctx = { config: this.config, sides, withFixes: !!opts.withFixes, includeIndex };
     // Checked in this thread, one chunk at a time. (Checking chunks on worker threads was measured
     // slower on two cores: 9.6 s against 6.7 s at 1M lines, each worker paying its own start-up
     // and collections.)
@@ -283,7 +283,7 @@ export class Workspace {
     const gathered = new Map<string, GatheredItem[]>();
     const suppressions = new Map<string, Suppression[]>();
     const results = chunks.map((c, i) => {
-      const r = checkChunk(c, ctx, gathered, includeIndex);
+      const r = checkChunk(c, ctx, gathered);
       chunks[i] = []; // let this chunk's facts go
       r.suppressions.forEach((v, k) => suppressions.set(k, v));
       budget.step();
@@ -291,7 +291,7 @@ export class Workspace {
     });
     const all = finishFindings([...this.walkNotices], new Model([], { ...DEFAULT_CONFIG, workspaceSides: sides }), this.config);
     // the workspace checks, from what every chunk gathered (their fixes need no model)
-    all.push(...unsuppressed(withSeverity(concludeWorkspace(gathered), this.config), suppressions));
+    all.push(...concludeFinished(gathered, this.config, (file) => suppressions.get(file)));
     const fixes = new Map<Finding, Fix[]>();
     for (const r of results) {
       r.findings.forEach((f, i) => {

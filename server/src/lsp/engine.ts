@@ -17,9 +17,9 @@ import { createHash } from "node:crypto";
 import { Workspace, listSources } from "../analysis/workspace.js";
 import type { FerruleConfig } from "../analysis/config.js";
 import type { Finding } from "../rules/api.js";
-import { concludeWorkspace, workspaceCheckIds, type GatheredItem } from "../rules/index.js";
-import { withSeverity } from "../analysis/finish.js";
-import { unsuppressed, type Suppression } from "../analysis/suppress.js";
+import { workspaceCheckIds, type GatheredItem } from "../rules/index.js";
+import { concludeFinished } from "../analysis/finish.js";
+import type { Suppression } from "../analysis/suppress.js";
 import type { Model } from "../model/boundary.js";
 import type { CachedItem, FileFacts, ItemCache, Range } from "../model/types.js";
 import { langOf, type Tree } from "../parse/parser.js";
@@ -492,13 +492,7 @@ export class Engine {
     }
     const all = new Map<string, GatheredItem[]>();
     for (const [id, byFile] of this.gatheredBy) all.set(id, [...byFile.values()].flat());
-    const raw = withSeverity(concludeWorkspace(all), this.ws.config);
-    const sup = new Map<string, Suppression[]>();
-    for (const f of raw) {
-      const s = this.ws.facts(f.range.file)?.extra.suppressions as Suppression[] | undefined;
-      if (s?.length) sup.set(f.range.file, s);
-    }
-    const next = unsuppressed(raw, sup);
+    const next = concludeFinished(all, this.ws.config, (file) => this.ws.facts(file)?.extra.suppressions as Suppression[] | undefined);
     const key = (f: Finding) => `${f.rule}|${f.range.file}|${f.range.line}|${f.range.col}|${f.range.endLine}|${f.range.endCol}|${f.message}|${f.related.map((r) => `${r.range.file}:${r.range.line}:${r.range.col}`).join(",")}`;
     const before = new Set(this.layer.map(key));
     const after = new Set(next.map(key));
