@@ -131,6 +131,12 @@ function localOf(f: FileFacts | undefined): { set: Set<string>; sig: string } {
   return l;
 }
 
+/** An item that declares no name the seam links (only `r:` helper names): a helper function. */
+function isHelper(k: Keys): boolean {
+  for (const x of k.decl) if (!x.startsWith("r:")) return false;
+  return true;
+}
+
 /** Names one Rust item declares and uses (as keysOf for a file), as part of a file whose local
  * helpers are `local` (a plain call to one of them is no cross-file use). */
 function itemKeys(it: CachedItem, local: { set: Set<string>; sig: string }): Keys {
@@ -590,7 +596,7 @@ export class Engine {
       if (!it.fns.length && !it.types.length && !it.asserts.length) continue;
       const k = itemKeys(it, dropped.includes(it) ? localOf(before) : localOf(after));
       // a helper (no name the seam links) can change what the functions calling it do
-      if (![...k.decl].some((x) => !x.startsWith("r:")) || it.fns.some((fn) => (fn as { internal?: boolean }).internal)) return undefined;
+      if (isHelper(k) || it.fns.some((fn) => (fn as { internal?: boolean }).internal)) return undefined;
       k.decl.forEach((x) => kDecl.add(x));
       k.use.forEach((x) => kUse.add(x));
     }
@@ -712,8 +718,7 @@ export class Engine {
       const it = e.item;
       const k = itemKeys(it, localOf(facts));
       // helpers (items that declare no linked name, only `r:` helper names) always come along
-      const helper = ![...k.decl].some((x) => !x.startsWith("r:"));
-      if (dirty.has(it) || helper || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
+      if (dirty.has(it) || isHelper(k) || anyIn(k.decl, ctxKeys) || anyIn(k.use, ctxKeys)) choose(it);
     }
     for (let grew = true; grew;) {
       grew = false;
