@@ -221,13 +221,28 @@ async function main() {
   if (small) out.push("", `(f) compiling the ${fmt(small.lines)}-line workspace instead (${small.compile.crates} × rustc --emit=metadata, ${small.compile.blocks} × g++ -fsyntax-only, 2 jobs at a time): ${fmt(small.compile.ms)} ms = ${small.compile.ratioToCheck}× the check${small.compile.failures ? ` (${small.compile.failures} job(s) FAILED)` : ""}`);
   for (const s of scaling) out.push(`scaling ${fmt(s.from)} → ${fmt(s.to)} lines (${s.linesRatio}×): time ${s.timeRatio}×`);
   for (const s of subs) out.push(`sub-benchmark ${s.name}: ${s.ok ? JSON.stringify(s.result) : "FAILED"}`);
+  const floors = subs.find((s) => s.name === "floors" && s.ok)?.result;
+  const bounds = {};
+  if (floors) {
+    // What the parser binding alone allows (scripts/bench/floors.mjs): the best a check could do.
+    if (small) bounds.compileOverCheckAtMost = +(small.compile.ms / floors.startupMs).toFixed(1);
+    if (floors.extraction) bounds.checkOverFloorAtLeast = floors.extraction.bound;
+    out.push(
+      "",
+      `bounds from the parser binding alone (sub-benchmark floors): start-up with the grammars loaded takes ${fmt(floors.startupMs)} ms` +
+        (small ? `, so (f)/(b) ≤ ${fmt(small.compile.ms)} / ${fmt(floors.startupMs)} = ${bounds.compileOverCheckAtMost}` : "") +
+        (floors.extraction
+          ? `; finding and reading the nodes extraction starts from costs ${(floors.extraction.bound - 1).toFixed(2)}× the parse on ${floors.extraction.workspace}, so (b)/(a) ≥ ${floors.extraction.bound}`
+          : ""),
+    );
+  }
   out.push("", "targets: " + Object.entries(targets).map(([k, v]) => `${k}=${v === undefined ? "n/a" : v ? "met" : "NOT met"}`).join(", "));
   out.push(`machine: ${machine.cpus} × ${machine.cpuModel}, ${machine.memGiB} GiB, ${machine.os}, node ${machine.node}; load average ${machine.loadAvgStart.join(" ")} at start, ${machine.loadAvgEnd.join(" ")} at end`);
   console.log(out.join("\n"));
   for (const r of rows) {
     if (!r.planted.ok) console.log(`planted check FAILED at ${r.lines} lines: missing ${JSON.stringify(r.planted.missing.slice(0, 20))}, unexpected ${JSON.stringify(r.planted.unexpected.slice(0, 20))}`);
   }
-  const json = { version: 1, date: new Date().toISOString(), seed: opt.seed, machine, rows, scaling, targets, subBenchmarks: subs, table: out.join("\n") };
+  const json = { version: 1, date: new Date().toISOString(), seed: opt.seed, machine, rows, scaling, targets, bounds, subBenchmarks: subs, table: out.join("\n") };
   fs.writeFileSync(path.join(OUT, "bench.json"), JSON.stringify(json, null, 2) + "\n");
   console.log(`\nwrote ${path.relative(ROOT, path.join(OUT, "bench.json"))}`);
   if (!targets.plantedFindingsAllReported) process.exitCode = 1;

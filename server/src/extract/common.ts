@@ -214,7 +214,7 @@ function capture(root: Node, types: readonly string[], maxDepth: number): Node[]
 
 /** Types the whole-file walks of the C/C++ extractors ask for (c.ts, macros.ts, the buffers and
  * ownership plugins): found once per tree. A walk asking for other types runs its own search. */
-const TOP_TYPES = [
+export const TOP_TYPES = [
   "preproc_include", "preproc_def", "preproc_call", "function_definition", "declaration", "field_declaration", "type_definition",
   "struct_specifier", "union_specifier", "enum_specifier", "call_expression", "static_assert_declaration", "class_specifier",
   "template_declaration", "compound_statement", "enumerator", "parameter_declaration",
