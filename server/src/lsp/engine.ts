@@ -400,27 +400,13 @@ export class Engine {
       if (narrow) {
         const gathered = new Map<string, GatheredItem[]>();
         const { findings } = this.ws.checkSubset(narrow.context, new Map([[f, narrow.partial]]), gathered);
-        const inDirty = (r: Range) => r.file !== f || narrow.dirty.some(([a, b]) => r.line >= a && r.line <= b);
-        const keep: Finding[] = [];
-        const moved = new Set<string>(); // files whose kept findings point at moved lines
-        for (const x of this.findings) {
-          if (WORKSPACE_CHECKS.has(x.rule)) continue; // (the layer is concluded again below)
-          if (narrow.affected.has(x.range.file)) continue;
-          if (x.range.file === f && narrow.dirtyBefore.some(([a, b]) => x.range.line >= a && x.range.line <= b)) continue;
-          const y = narrow.shift(x);
-          if (y !== x) moved.add(y.range.file);
-          keep.push(y);
-        }
-        const fresh = findings.filter((x) => narrow.affected.has(x.range.file) || (x.range.file === f && inDirty(x.range)));
-        const wasDirty = (r: Range) => narrow.affected.has(r.file) || (r.file === f && narrow.dirtyBefore.some(([a, b]) => r.line >= a && r.line <= b));
-        const isDirty = (r: Range) => narrow.affected.has(r.file) || (r.file === f && inDirty(r));
-        const layerChanged = this.refreshLayer(gathered, wasDirty, isDirty, (r) => narrow.shift({ rule: "", severity: "hint", message: "", range: r, related: [] }).range);
-        this.findings = sortFindings([...keep, ...fresh, ...this.layer]);
-        this.lastContext = narrow.context.size;
-        this.fullModel = undefined;
-        this.needFull = false;
+        const inRows = (rows: [number, number][]) => (r: Range) => rows.some(([a, b]) => r.line >= a && r.line <= b);
+        const wasDirty = (r: Range) => narrow.affected.has(r.file) || (r.file === f && inRows(narrow.dirtyBefore)(r));
+        const isDirty = (r: Range) => narrow.affected.has(r.file) || (r.file === f && inRows(narrow.dirty)(r));
         // (files with moved findings are republished, not re-checked)
-        const affected = new Set([...narrow.affected, ...moved, f, ...layerChanged]);
+        const touched = this.mergeScoped(findings, gathered, wasDirty, isDirty, { finding: narrow.shift, range: narrow.at });
+        this.lastContext = narrow.context.size;
+        const affected = new Set([...narrow.affected, f, ...touched]);
         return { findings: this.findings, affected, changed, scope: "items", ms: performance.now() - t0, context: narrow.context.size };
       }
     }
@@ -431,32 +417,20 @@ export class Engine {
         this.lastContext = narrow.context.size;
         const gathered = new Map<string, GatheredItem[]>();
         const { findings } = this.ws.checkSubset(narrow.context, narrow.replace, gathered);
-        const inDirtyAt = (r: Range) => {
+        const owned = (r: Range) => {
+          if (narrow.full.has(r.file)) return true;
           const dirty = narrow.partial.get(r.file);
           return !!dirty && !!itemAt(r.line, dirty);
         };
-        const inDirty = (x: Finding) => inDirtyAt(x.range);
-        const keep = this.findings.filter((x) => !WORKSPACE_CHECKS.has(x.rule) && !narrow.full.has(x.range.file) && !inDirty(x));
-        const fresh = findings.filter((x) => narrow.full.has(x.range.file) || inDirty(x));
-        const owned = (r: Range) => narrow.full.has(r.file) || inDirtyAt(r);
-        const layerChanged = this.refreshLayer(gathered, owned, owned);
-        this.findings = sortFindings([...keep, ...fresh, ...this.layer]);
-        this.fullModel = undefined;
-        this.needFull = false;
-        for (const x of layerChanged) affected.add(x);
+        for (const x of this.mergeScoped(findings, gathered, owned, owned)) affected.add(x);
         return { findings: this.findings, affected, changed, scope: "scoped", ms: performance.now() - t0, context: narrow.context.size };
       }
       this.lastContext = context.size;
       if (context.size <= Math.max(40, this.fileKeys.size * 0.4)) {
         const gathered = new Map<string, GatheredItem[]>();
         const { findings } = this.ws.checkSubset(context, undefined, gathered);
-        const keep = this.findings.filter((f) => !WORKSPACE_CHECKS.has(f.rule) && !affected.has(f.range.file));
-        const fresh = findings.filter((f) => affected.has(f.range.file));
         const owned = (r: Range) => affected.has(r.file);
-        for (const x of this.refreshLayer(gathered, owned, owned)) affected.add(x);
-        this.findings = sortFindings([...keep, ...fresh, ...this.layer]);
-        this.fullModel = undefined;
-        this.needFull = false;
+        for (const x of this.mergeScoped(findings, gathered, owned, owned)) affected.add(x);
         return { findings: this.findings, affected, changed, scope: "scoped", ms: performance.now() - t0, context: context.size };
       }
     }
@@ -468,6 +442,33 @@ export class Engine {
     this.fullModel = this.linkModel = this.ws.model();
     this.needFull = false;
     return { findings: this.findings, affected: "all", changed, scope: "full", ms: performance.now() - t0 };
+  }
+
+  /**
+   * Takes in the findings of a scoped re-check: the old findings at places it re-checked
+   * (`wasOwned`, before the edit) give way to its findings at those places (`isOwned`, after),
+   * the others stay (moved with the edit by `shift`), and the workspace checks conclude again
+   * (refreshLayer). Returns the files whose published findings changed beyond the re-checked
+   * places: kept findings that moved, and the workspace checks' findings.
+   */
+  private mergeScoped(
+    findings: Finding[], gathered: Map<string, GatheredItem[]>, wasOwned: (r: Range) => boolean, isOwned: (r: Range) => boolean,
+    shift?: { finding: (f: Finding) => Finding; range: (r: Range) => Range },
+  ): Set<string> {
+    const touched = new Set<string>();
+    const keep: Finding[] = [];
+    for (const x of this.findings) {
+      if (WORKSPACE_CHECKS.has(x.rule) || wasOwned(x.range)) continue; // (the layer is concluded again below)
+      const y = shift ? shift.finding(x) : x;
+      if (y !== x) touched.add(y.range.file);
+      keep.push(y);
+    }
+    const fresh = findings.filter((x) => isOwned(x.range));
+    for (const file of this.refreshLayer(gathered, wasOwned, isOwned, shift?.range)) touched.add(file);
+    this.findings = sortFindings([...keep, ...fresh, ...this.layer]);
+    this.fullModel = undefined;
+    this.needFull = false;
+    return touched;
   }
 
   /**
@@ -566,7 +567,7 @@ export class Engine {
    */
   private itemScope(file: string, before: FileFacts | undefined, oldOrder: ItemCache["order"], newOrder: ItemCache["order"]): {
     affected: Set<string>; context: Set<string>; partial: FileFacts;
-    dirty: [number, number][]; dirtyBefore: [number, number][]; shift: (f: Finding) => Finding;
+    dirty: [number, number][]; dirtyBefore: [number, number][]; shift: (f: Finding) => Finding; at: (r: Range) => Range;
   } | undefined {
     const after = this.ws.facts(file);
     if (!before || !after || !oldOrder || !newOrder || before.lang !== "rust") return undefined;
@@ -585,7 +586,7 @@ export class Engine {
     const dropped = oldOrder.map((e) => e.item).filter((it) => !claimed.has(it));
     if (!fresh.length && !dropped.length && [...claimed].every(([o, n]) => o.row === n.row)) {
       // (only text outside items changed, nothing moved: no finding can change)
-      return { affected: new Set(), context: new Set(), partial: { ...after, fns: [], types: [], asserts: [] }, dirty: [], dirtyBefore: [], shift: (f) => f };
+      return { affected: new Set(), context: new Set(), partial: { ...after, fns: [], types: [], asserts: [] }, dirty: [], dirtyBefore: [], shift: (f) => f, at: (r) => r };
     }
     // Names the changed items declare and use.
     const kDecl = new Set<string>();
@@ -650,7 +651,7 @@ export class Engine {
       return { ...f, range: at(f.range), related: f.related.map((r) => (r.range.file === file ? { ...r, range: at(r.range) } : r)) };
     };
     const rows = (items: Iterable<CachedItem>) => [...items].map((it) => [it.first, it.last] as [number, number]);
-    return { affected, context: new Set([...context, file]), partial, dirty: rows(dirtyItems), dirtyBefore: rows(dirtyOld), shift };
+    return { affected, context: new Set([...context, file]), partial, dirty: rows(dirtyItems), dirtyBefore: rows(dirtyOld), shift, at };
   }
 
   /**
