@@ -166,3 +166,17 @@ export class Model {
 export function normName(n: string): string {
   return n.replace(/^(struct|union|enum)\s+/, "").replace(/_t$/, "").replace(/_/g, "").toLowerCase();
 }
+
+/**
+ * Whether a Rust type name and a C type name name the same type by common practice: equal once
+ * normalised (normName), or once the C name also drops its library prefix, since Rust code keeps
+ * the prefix in the crate or module path instead (`lfe_strike` / `Strike`, `lfe_station_cal` /
+ * `StationCal`, `LFE_CONFIG` / `Config`).
+ */
+export function mirrorNames(rust: string, c: string): boolean {
+  const rn = normName(rust);
+  if (normName(c) === rn) return true;
+  const parts = c.replace(/^(struct|union|enum)\s+/, "").replace(/_t$/, "").split("_").filter(Boolean);
+  for (let i = 1; i < parts.length; i++) if (parts.slice(i).join("").toLowerCase() === rn) return true;
+  return false;
+}

@@ -3,7 +3,7 @@
 
 import type { AbiType } from "./types.js";
 import { scalarInfo, type Triple, C_SPELLING, RUST_SPELLING } from "./targets.js";
-import { normName, type Model } from "./boundary.js";
+import { mirrorNames, type Model } from "./boundary.js";
 import { layoutOf } from "./layout.js";
 
 export type DiffKind =
@@ -196,7 +196,7 @@ function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple)
   const lr = layoutOf(r, { model, side: "rust", triple });
   const lc = layoutOf(c, { model, side: "c", triple });
   if (lr.unknown || lc.unknown) {
-    if (r.k === "named" && c.k === "named" && normName(r.name) !== normName(c.name) && rd && cd) {
+    if (r.k === "named" && c.k === "named" && !mirrorNames(r.name, c.name) && rd && cd) {
       return { kind: "name", detail: `\`${r.name}\` in Rust but \`${describeC(c)}\` in C` };
     }
     return null;
@@ -214,7 +214,7 @@ function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple)
   if ((r.k === "named") !== (c.k === "named") && !(rd?.kind === "enum" || cd?.kind === "enum")) {
     return { kind: "kind", detail: `\`${describeRust(r)}\` in Rust but \`${describeC(c)}\` in C` };
   }
-  if (r.k === "named" && c.k === "named" && normName(r.name) !== normName(c.name) && rd && cd && rd.kind !== "enum" && cd.kind !== "enum") {
+  if (r.k === "named" && c.k === "named" && !mirrorNames(r.name, c.name) && rd && cd && rd.kind !== "enum" && cd.kind !== "enum") {
     return { kind: "name", detail: `\`${r.name}\` in Rust but \`${describeC(c)}\` in C (same size, different types)` };
   }
   return null;

@@ -5,8 +5,8 @@
 //      ferrule doc-comment annotation (on either side; see the README, "Buffer contracts"):
 //          ferrule-buffers: out[n], iq[2*n], raw[nbytes bytes], ctx nullable, alias(in, out)
 //   2. Rust body evidence: `slice::from_raw_parts(p, len)` in the exported function's body;
-//   3. naming conventions: `n`, `len`, `count`, `num_*`, `n_*`, `*_len`, `*_count`, `n<word>`
-//      for item counts, `nbytes`, `*_bytes`, `size` for byte counts.
+//   3. naming conventions: `n`, `len`, `count`, `num_*`, `n_*`, `*_len`, `*_count`, `n<word>`,
+//      and capacities `max_*`, `*_max`, `cap`, `*_cap`, `*_capacity` for item counts, `nbytes`, `*_bytes`, `size` for byte counts.
 // Each pairing carries its evidence (text and location) for messages and hovers.
 
 import type { Model } from "./boundary.js";
@@ -146,7 +146,7 @@ export function sameTerm(model: Model, a: LenTerm, b: LenTerm, side: "rust" | "c
 
 // ------------------------------------------------------------------------------------------
 
-const ITEM_NAME = /^(n|len|length|count|num|cnt|nitems|n_items|nsamp|nsamples|nbins|ntaps|npoints|nframes|nelem|nelems|nvals|nvalues)$|^(num|n)_[a-z0-9_]+$|^[a-z0-9_]+_(len|length|count|cnt|items|samples|num)$|^n[a-z]{2,12}$/;
+const ITEM_NAME = /^(n|len|length|count|num|cnt|nitems|n_items|nsamp|nsamples|nbins|ntaps|npoints|nframes|nelem|nelems|nvals|nvalues|cap|capacity)$|^(num|n|max)_[a-z0-9_]+$|^[a-z0-9_]+_(len|length|count|cnt|items|samples|num|max|cap|capacity)$|^n[a-z]{2,12}$/;
 const BYTE_NAME = /^(nbytes|size|byte_len|len_bytes|size_bytes|num_bytes)$|^[a-z0-9_]+_(bytes|nbytes)$|^n_bytes$/;
 const NOT_COUNT = /^(norm|noise|null|name|node|next|nan|notify|nonce)/;
 
@@ -345,7 +345,7 @@ export function contractOf(model: Model, symbol: string): FnContract | undefined
     for (const x of ptrs) {
       const pn = x.p.name.toLowerCase();
       if (!pn) continue;
-      if (nm === `${pn}_len` || nm === `${pn}_count` || nm === `n_${pn}` || nm === `num_${pn}` || nm === `${pn}_bytes` || nm === `${pn}_nbytes` || nm === `${pn}_size` || nm === `${pn}len` || nm === `n${pn}`) specific.set(x.i, { i: l.i, unit: nm === `${pn}_size` ? "bytes" : l.unit! });
+      if (nm === `${pn}_len` || nm === `${pn}_count` || nm === `n_${pn}` || nm === `num_${pn}` || nm === `${pn}_bytes` || nm === `${pn}_nbytes` || nm === `${pn}_size` || nm === `${pn}len` || nm === `n${pn}` || nm === `max_${pn}` || nm === `${pn}_max` || nm === `${pn}_cap` || nm === `${pn}_capacity`) specific.set(x.i, { i: l.i, unit: nm === `${pn}_size` ? "bytes" : l.unit! });
     }
   }
   const generic = lens.filter((l) => ![...specific.values()].some((s) => s.i === l.i));

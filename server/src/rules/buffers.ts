@@ -184,7 +184,8 @@ function checkRust(model: Model, k: FnContract, out: Finding[]): void {
       continue;
     }
     // different length parameters
-    const usesOtherLen = t.names.some((n) => { const i = Number(n.slice(1)); return lenParams.has(i) && !P.len.names.includes(n); });
+    // (a length parameter this body pairs with `param` alone is not another buffer's length)
+    const usesOtherLen = t.names.some((n) => { const i = Number(n.slice(1)); return k.all.some((p) => p.ptr !== pi && p.lenParam === i) && !P.len.names.includes(n); });
     if (explicit || usesOtherLen) {
       const other = k.all.filter((p) => p.ptr !== pi && t.names.some((n) => p.len.names.includes(n)))[0];
       const extra = other ? ` (\`${idxTermText(other.len, ref)}\` is the length of \`${other.ptrName}\`)` : "";
