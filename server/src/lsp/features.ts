@@ -90,6 +90,9 @@ export function signatureText(fn: FnDecl, textOf: TextOf): string {
     const params = fn.params.map((p) => `${p.name}: ${p.text}`);
     if (fn.variadic) params.push("...");
     const attrs = fn.noMangle && fn.role === "export" ? "#[no_mangle]\n" : "";
+    // the qualifiers as written (`pub(crate) unsafe extern "C" fn`), when the source is at hand
+    const written = slice(textOf(fn.file), { ...fn.range, endLine: fn.nameRange.endLine, endCol: fn.nameRange.endCol })?.replace(/\s+/g, " ").trim();
+    if (written && written.endsWith(`fn ${fn.name}`) && !written.includes("#")) return `${attrs}${written}(${params.join(", ")})${ret}`;
     return `${attrs}${fn.isPub ? "pub " : ""}${abi}fn ${fn.name}(${params.join(", ")})${ret}`;
   }
   const text = textOf(fn.file);
