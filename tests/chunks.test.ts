@@ -72,7 +72,9 @@ describe("chunked check = whole check", () => {
   test("all fixtures read as one workspace (names and headers of many scenarios meet)", async () => {
     const w = await whole([FIX]);
     const c = await chunked([FIX], 1);
-    expect(c.chunks).toBeGreaterThan(20);
+    // many chunks, for a real comparison; fixtures share common names (Status, get(), main, the
+    // default port calls), which joins some of them (19 chunks with the two clean probes)
+    expect(c.chunks).toBeGreaterThan(15);
     expect(c.findings).toEqual(w);
   }, 240_000);
 
@@ -130,7 +132,7 @@ describe("chunked check = whole check", () => {
         encoding: "utf8", timeout: 120_000, env: { ...process.env, FERRULE_WORKERS: "2", FERRULE_CHUNK_FILES: "1", FERRULE_TIMINGS: "1", FERRULE_PACK: pack },
       });
       expect(r.status).toBe(1);
-      expect(r.stderr).toMatch(/in [2-9]\d+ chunk\(s\)/);
+      expect(Number(/in (\d+) chunk\(s\)/.exec(r.stderr)?.[1])).toBeGreaterThan(15);
       const got = (JSON.parse(r.stdout).findings as { rule: string; file: string; line: number; column: number; message: string }[]).map((f) => `${f.rule}|${f.file}|${f.line}:${f.column}|${f.message}`);
       expect(got.sort(), `FERRULE_PACK=${pack}`).toEqual(want);
     }

@@ -29,7 +29,7 @@ const INT_PRIMS = new Set(["i8", "u8", "i16", "u16", "i32", "u32", "i64", "u64",
   "c_int", "c_uint", "c_long", "c_ulong", "c_short", "c_ushort", "c_longlong", "c_ulonglong", "size_t", "c_char", "c_uchar", "c_schar"]);
 
 /** The node types extractRustFn's body walk acts on (the others are found inside wasm). */
-const RUST_VISITED = ["function_item", "impl_item", "mod_item", "let_declaration", "reference_expression", "macro_invocation", "index_expression", "binary_expression", "compound_assignment_expr", "call_expression"];
+const RUST_VISITED = ["function_item", "impl_item", "mod_item", "let_declaration", "let_condition", "reference_expression", "macro_invocation", "index_expression", "binary_expression", "compound_assignment_expr", "call_expression"];
 for (const t of RUST_VISITED) bodyWalkTypes.rust.add(t);
 const PANIC_MACROS: Record<string, RustOwnFacts["panics"][number]["kind"]> = {
   panic: "panic", unreachable: "unreachable", todo: "todo", unimplemented: "todo",
@@ -59,6 +59,81 @@ function pathParts(fnNode: Node): { head: string; name: string; turbofish?: stri
     return { head, name, turbofish: ta };
   }
   return { head: lastSeg(path.text), name };
+}
+
+/** Integer literal value (`1`, `2usize`, `0x10`), or undefined. */
+function intLit(n: Node | null | undefined): number | undefined {
+  if (n?.type !== "integer_literal") return undefined;
+  const v = Number(n.text.replace(/_/g, "").replace(/(usize|isize|u\d+|i\d+)$/, ""));
+  return Number.isSafeInteger(v) ? v : undefined;
+}
+
+function unparen(n: Node | null | undefined): Node | null | undefined {
+  while (n?.type === "parenthesized_expression") n = n.namedChild(0);
+  return n;
+}
+
+/**
+ * `2 * n`, `n * nchan` (a product of names and integer literals) as the length argument of
+ * `slice::from_raw_parts(_mut)`: cannot overflow for a caller that meets the pointer's contract.
+ * from_raw_parts requires `len * size_of::<T>() <= isize::MAX` (core::slice::from_raw_parts,
+ * Safety), so a buffer that really holds that many items bounds the product well below
+ * usize::MAX; only a caller that already broke the contract (undefined behaviour anyway) can
+ * reach the overflow.
+ */
+function isSliceLengthProduct(n: Node): boolean {
+  const operand = (x: Node | null | undefined): boolean => {
+    const u = unparen(x);
+    if (!u) return false;
+    if (u.type === "identifier" || u.type === "integer_literal") return true;
+    return u.type === "binary_expression" && (u.childForFieldName("operator") ?? u.child(1))?.text === "*" &&
+      operand(u.childForFieldName("left")) && operand(u.childForFieldName("right"));
+  };
+  if (!operand(n)) return false;
+  let top: Node = n;
+  while (top.parent && (top.parent.type === "parenthesized_expression" || (top.parent.type === "binary_expression" && operand(top.parent)))) top = top.parent;
+  const args = top.parent;
+  if (args?.type !== "arguments") return false;
+  const list = args.namedChildren.filter((c) => !c.type.endsWith("comment"));
+  if (list.length !== 2 || list[1].id !== top.id) return false;
+  let f = args.parent?.childForFieldName("function");
+  if (f?.type === "generic_function") f = f.childForFieldName("function");
+  const name = f?.type === "scoped_identifier" ? f.childForFieldName("name")?.text : f?.type === "identifier" ? f.text : undefined;
+  return name === "from_raw_parts" || name === "from_raw_parts_mut";
+}
+
+/**
+ * `a - k` / `a - b` inside the branch of an `if` whose condition (or one `&&` operand of it)
+ * says `a > j` (j >= k - 1), `a >= j` (j >= k), `a != 0` (k = 1), or `a > b` / `a >= b` (also
+ * written the other way round): the subtraction cannot underflow there.
+ */
+function isGuardedSub(n: Node): boolean {
+  const a = unparen(n.childForFieldName("left"));
+  const b = unparen(n.childForFieldName("right"));
+  if (a?.type !== "identifier" || !b) return false;
+  const k = intLit(b);
+  const bName = b.type === "identifier" ? b.text : undefined;
+  if (k === undefined && !bName) return false;
+  const says = (c: Node | null | undefined): boolean => {
+    const u = unparen(c);
+    if (u?.type !== "binary_expression") return false;
+    let op = (u.childForFieldName("operator") ?? u.child(1))?.text ?? "";
+    if (op === "&&") return says(u.childForFieldName("left")) || says(u.childForFieldName("right"));
+    let l = unparen(u.childForFieldName("left"));
+    let r = unparen(u.childForFieldName("right"));
+    const flip: Record<string, string> = { "<": ">", "<=": ">=" };
+    if (flip[op]) { [l, r] = [r, l]; op = flip[op]; }
+    if (l?.type !== "identifier" || l.text !== a.text || !r) return false;
+    if (bName) return (op === ">" || op === ">=") && r.type === "identifier" && r.text === bName;
+    const j = intLit(r);
+    if (j === undefined || k === undefined) return false;
+    return (op === ">" && j >= k - 1) || (op === ">=" && j >= k) || (op === "!=" && j === 0 && k === 1);
+  };
+  for (let c: Node = n, p = n.parent; p; c = p, p = p.parent) {
+    if (p.type === "function_item" || p.type === "closure_expression") return false;
+    if (p.type === "if_expression" && p.childForFieldName("consequence")?.id === c.id && says(p.childForFieldName("condition"))) return true;
+  }
+  return false;
 }
 
 function pointeeName(typeText: string | undefined): string | undefined {
@@ -169,13 +244,32 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     return undefined;
   };
 
+  /** `Some(nn)` bound to `NonNull::new(p)` (in `if let`, `let … else`, `while let`): `nn` is `p`
+   * checked for NULL, and `nn.as_ptr()` is `p` again (core::ptr::NonNull::new returns None for a
+   * null pointer, else Some of the same pointer). */
+  const aliasNonNull = (pat: Node | null, val: Node | null): void => {
+    if (pat?.type !== "tuple_struct_pattern" || val?.type !== "call_expression") return;
+    if (lastSeg(pat.childForFieldName("type")?.text ?? "") !== "Some") return;
+    const binds = pat.namedChildren.filter((c) => c.id !== pat.childForFieldName("type")?.id);
+    const name = binds.length === 1 ? (binds[0].type === "identifier" ? binds[0].text : binds[0].type === "mut_pattern" ? binds[0].namedChild(0)?.text : undefined) : undefined;
+    const fnNode = val.childForFieldName("function");
+    const pp = fnNode ? pathParts(fnNode) : undefined;
+    if (!name || !pp || pp.head !== "NonNull" || (pp.name !== "new" && pp.name !== "new_unchecked")) return;
+    const r = argRef(val.childForFieldName("arguments")?.namedChildren.find((c) => !c.type.endsWith("comment")));
+    if (r.ident && r.ident !== name) aliases.set(name, { ident: r.ident, cast: r.cast, text: val.text });
+  };
+
   indexSubtree(body, [...bodyWalkTypes.rust]);
   walkTypes(body, RUST_VISITED, (n) => {
     if (n.type === "function_item" || n.type === "impl_item" || n.type === "mod_item") return false;
     switch (n.type) {
+      case "let_condition":
+        aliasNonNull(n.childForFieldName("pattern"), n.childForFieldName("value"));
+        return;
       case "let_declaration": {
         const pat = n.childForFieldName("pattern");
         const val = n.childForFieldName("value");
+        aliasNonNull(pat, val);
         const tt = n.childForFieldName("type");
         const name = pat?.type === "identifier" ? pat.text : pat?.type === "mut_pattern" ? pat.namedChild(0)?.text : undefined;
         if (name && tt?.type === "primitive_type" && INT_PRIMS.has(tt.text)) intNames.add(name);
@@ -214,7 +308,8 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
           (x.type === "type_cast_expression" && INT_PRIMS.has(lastSeg(x.childForFieldName("type")?.text ?? ""))));
         const isFloatLit = (x: Node | null) => x?.type === "float_literal";
         const base = op.replace(/=$/, "");
-        if (["+", "-", "*"].includes(base) && (isInt(l) || isInt(r)) && !isFloatLit(l) && !isFloatLit(r)) {
+        if (["+", "-", "*"].includes(base) && (isInt(l) || isInt(r)) && !isFloatLit(l) && !isFloatLit(r) &&
+          !(op === "*" && isSliceLengthProduct(n)) && !(op === "-" && isGuardedSub(n))) {
           own.panics.push({ kind: "overflow", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
         } else if (["/", "%"].includes(base) && isInt(r)) {
           own.panics.push({ kind: "division", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
