@@ -83,8 +83,8 @@ function fnOf(t: AbiType): (AbiType & { k: "fn" }) | undefined {
  */
 export function compareOn(model: Model, r0: AbiType, c0: AbiType, triple: Triple, level = 0): TypeDiff | null {
   if (level > 16) return null;
-  const r = model.resolve(r0, "rust");
   const c = model.resolve(c0, "c");
+  const r = transparentAsField(model, model.resolve(r0, "rust"), c, triple);
   if (r.k === "unknown" || c.k === "unknown" || r.k === "unsafe" || c.k === "unsafe") return null;
 
   const rf = fnOf(r);
@@ -165,6 +165,31 @@ export function compareOn(model: Model, r0: AbiType, c0: AbiType, triple: Triple
   }
   if (r.k !== c.k) return { kind: "kind", detail: `\`${describeRust(r)}\` in Rust but \`${describeC(c)}\` in C` };
   return null;
+}
+
+/**
+ * A Rust `#[repr(transparent)]` struct "has the same layout and ABI as" its one non-zero-sized
+ * field (Rust Reference, "Type layout", the transparent representation), so against a C type that
+ * is not itself a struct or union (`typedef uint32_t chan_id` for `struct ChanId(u32)`) it is
+ * compared as that field. Against a C struct or union it stays a mirror pair: a one-field C struct
+ * is not passed like its field on every ABI (i386 returns it through memory).
+ */
+function transparentAsField(model: Model, r: AbiType, c: AbiType, triple: Triple): AbiType {
+  if (c.k === "named") {
+    const kind = model.aggregate(c, "c")?.kind;
+    if (kind === "struct" || kind === "union") return r;
+  }
+  for (let i = 0; i < 8 && r.k === "named"; i++) {
+    const d = model.aggregate(r, "rust");
+    if (!d || d.lang !== "rust" || d.kind !== "struct" || !d.repr.transparent || d.generic) return r;
+    const sized = d.fields.filter((f) => {
+      const l = layoutOf(f.type, { model, side: "rust", triple });
+      return l.unknown || l.size > 0;
+    });
+    if (sized.length !== 1) return r;
+    r = model.resolve(sized[0]!.type, "rust");
+  }
+  return r;
 }
 
 function isByte(t: AbiType): boolean {

@@ -398,6 +398,55 @@ function enumWarning(model: Model, e: TypeDecl, where: string, range: Range, cTy
   out.push(finding(ENUM_FROM_C_INT, range, `${where} receives C \`${ct}\` as Rust enum \`${e.name}\`: any value other than ${shown} is undefined behaviour in Rust; receive the integer and convert it with a match or TryFrom`, [{ range: cRange, message: `C side (\`${ct}\`)` }], { data: { enum: e.id } }));
 }
 
+/**
+ * The Rust aggregates the seam's signatures name (`reached`), and those whose bytes C can hand to
+ * Rust (`inbound`): a parameter of an exported function, the return of an imported one, anything
+ * behind a writable pointer (C may fill it) or in a callback's signature (either side may
+ * implement it), and any field of a #[repr(C)]/transparent Rust type (whoever passes the outer
+ * type; the fields of a type without a C layout are Rust's own: C sees it only as an opaque
+ * handle). A type named only the other way (returned by a Rust export, passed to C by value or
+ * behind a const pointer) is only ever written by Rust, so a field-less enum in it holds one of
+ * its variants (Rust Reference, "Behavior considered undefined": producing an invalid value). A
+ * type no signature names (a `void *` cast, a name match) counts as inbound.
+ * Only one step from a signature or a field: the items this depends on share the type's name
+ * (analysis/keys.ts), so a scoped re-check sees them all.
+ */
+function seamFlows(model: Model): { reached: Set<string>; inbound: Set<string> } {
+  const reached = new Set<string>();
+  const inbound = new Set<string>();
+  const visit = (t: AbiType, inb: boolean, depth: number): void => {
+    if (depth > 16) return;
+    const r = model.resolve(t, "rust");
+    if (r.k === "unsafe") {
+      if (r.optionOf) visit(r.optionOf, inb, depth + 1);
+    } else if (r.k === "ptr") {
+      visit(r.to, inb || r.mut || r.via === "box", depth + 1);
+    } else if (r.k === "array") {
+      visit(r.of, inb, depth + 1);
+    } else if (r.k === "fn") {
+      for (const p of r.params) visit(p, true, depth + 1);
+      visit(r.ret, true, depth + 1);
+    } else if (r.k === "named") {
+      const d = model.aggregate(r, "rust");
+      if (!d) return;
+      reached.add(d.id);
+      if (inb) inbound.add(d.id);
+    }
+  };
+  for (const g of model.symbols.values()) {
+    for (const f of g.rust) {
+      if (f.role !== "export" && f.role !== "import") continue;
+      for (const p of f.params) visit(p.type, f.role === "export", 0);
+      visit(f.ret, f.role === "import", 0);
+    }
+  }
+  for (const file of model.files.values()) {
+    if (file.lang !== "rust") continue;
+    for (const d of file.types) if (d.repr.c || d.repr.transparent) for (const f of d.fields) visit(f.type, true, 0);
+  }
+  return { reached, inbound };
+}
+
 function checkEnumInputs(model: Model, pairs: Pair[], out: Finding[]): void {
   for (const g of model.symbols.values()) {
     if (!g.rust.length || !g.c.length) continue;
@@ -417,8 +466,10 @@ function checkEnumInputs(model: Model, pairs: Pair[], out: Finding[]): void {
       }
     }
   }
+  const flows = seamFlows(model);
   for (const p of pairs) {
     if (p.rust.kind === "enum" || p.c.kind === "enum") continue;
+    if (flows.reached.has(p.rust.id) && !flows.inbound.has(p.rust.id)) continue;
     const n = Math.min(p.rust.fields.length, p.c.fields.length);
     for (let i = 0; i < n; i++) {
       const rf = p.rust.fields[i]!;
