@@ -17,21 +17,15 @@ import { execFileSync, spawnSync } from "node:child_process";
 import * as fs from "node:fs";
 import * as os from "node:os";
 import * as path from "node:path";
-import { analyze, at, checkDir, FIXTURES } from "./helpers/analyze.js";
+import { analyze, at, FIXTURES } from "./helpers/analyze.js";
+import { expectNoFindings, have, memcheck } from "./helpers/clean.js";
 
 const DIR = path.join(FIXTURES, "clean", "radio-correlator");
-const ROOT = path.resolve(__dirname, "..");
-const have = (cmd: string) => spawnSync("sh", ["-c", `command -v ${cmd}`]).status === 0;
 const TOOLS = have("rustc") && have("gcc") && have("g++") && have("valgrind");
 
 describe("clean workspace: radio-correlator", () => {
   it("ferrule reports nothing, in-process and through the shipped CLI (exit 0, the aid-not-proof line)", async () => {
-    const { lines } = await checkDir("clean/radio-correlator");
-    expect(lines).toEqual([]);
-    const r = spawnSync(process.execPath, [path.join(ROOT, "bin", "ferrule.js"), "check", path.relative(ROOT, DIR)], { cwd: ROOT, encoding: "utf8" });
-    expect(r.status).toBe(0);
-    expect(r.stdout).toMatch(/no findings/i);
-    expect(r.stdout).toMatch(/not a proof of memory safety/);
+    await expectNoFindings("radio-correlator");
   });
 
   it.skipIf(!TOOLS)("the code is right: rustc, gcc and g++ build it, and it runs clean under Valgrind memcheck", () => {
@@ -46,7 +40,7 @@ describe("clean workspace: radio-correlator", () => {
       const blocks = fs.readdirSync(path.join(DIR, "blocks")).filter((f) => f.endsWith(".cc")).map((f) => path.join(DIR, "blocks", f));
       expect(blocks.length).toBe(4);
       execFileSync("g++", ["-std=c++17", "-Wall", "-Wextra", "-Werror", "-g", "-O0", "-o", exe, path.join(DIR, "tools", "driver.cc"), ...blocks, selftest, lib, "-lpthread", "-ldl", "-lm"], { stdio: "pipe" });
-      const r = spawnSync("valgrind", ["--tool=memcheck", "--error-exitcode=97", "--leak-check=full", "--errors-for-leak-kinds=definite,indirect", "-q", exe], { encoding: "utf8", timeout: 60_000 });
+      const r = memcheck(exe);
       expect(r.stderr).toBe("");
       // channel 3 carries 24000/32768 full scale on I and Q: |x|^2 = 2 * 0.7324^2 = 1.0729, times the
       // gain 2, averaged over 4 spectra of which the delay line (one spectrum) zeroes the first

@@ -19,23 +19,17 @@ import { execFileSync, spawnSync } from "node:child_process";
 import * as fs from "node:fs";
 import * as os from "node:os";
 import * as path from "node:path";
-import { analyze, at, checkDir, FIXTURES } from "./helpers/analyze.js";
+import { analyze, at, FIXTURES } from "./helpers/analyze.js";
+import { expectNoFindings, have, memcheck } from "./helpers/clean.js";
 
 const DIR = path.join(FIXTURES, "clean", "seismic-array");
-const ROOT = path.resolve(__dirname, "..");
-const have = (cmd: string) => spawnSync("sh", ["-c", `command -v ${cmd}`]).status === 0;
 const RUN_TOOLS = have("rustc") && have("gcc") && have("valgrind");
 const INCLUDE = path.join(DIR, "include");
 const TYPES_H = path.join(INCLUDE, "seis", "seis_types.h");
 
 describe("clean workspace: seismic-array", () => {
   it("ferrule reports nothing, in-process and through the shipped CLI (exit 0, the aid-not-proof line)", async () => {
-    const { lines } = await checkDir("clean/seismic-array");
-    expect(lines).toEqual([]);
-    const r = spawnSync(process.execPath, [path.join(ROOT, "bin", "ferrule.js"), "check", path.relative(ROOT, DIR)], { cwd: ROOT, encoding: "utf8" });
-    expect(r.status).toBe(0);
-    expect(r.stdout).toMatch(/no findings/i);
-    expect(r.stdout).toMatch(/not a proof of memory safety/);
+    await expectNoFindings("seismic-array");
   });
 
   it.skipIf(!RUN_TOOLS)("the code is right: rustc + gcc build it, and it runs clean under Valgrind memcheck", () => {
@@ -47,7 +41,7 @@ describe("clean workspace: seismic-array", () => {
       const exe = path.join(dir, "acquire");
       const csrc = fs.readdirSync(path.join(DIR, "csrc")).map((f) => path.join(DIR, "csrc", f));
       execFileSync("gcc", ["-std=c11", "-Wall", "-Wextra", "-Werror", "-g", "-O0", "-I", INCLUDE, "-o", exe, path.join(DIR, "app", "acquire.c"), ...csrc, lib, "-lpthread", "-ldl", "-lm"], { stdio: "pipe" });
-      const r = spawnSync("valgrind", ["--tool=memcheck", "--error-exitcode=97", "--leak-check=full", "--errors-for-leak-kinds=definite,indirect", "-q", exe], { encoding: "utf8", timeout: 60_000 });
+      const r = memcheck(exe);
       expect(r.stderr).toBe("");
       expect(r.stdout).toMatch(/^onsets 1, first at decimated sample 6\d\d /m);
       expect(r.stdout).toMatch(/^label 07\.0042 x16$/m);

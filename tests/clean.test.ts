@@ -7,16 +7,15 @@
 // Below, the patterns the probe first flagged (three false positives, fixed) are pinned next to
 // the slips the same rules must still report.
 import { describe, expect, it } from "vitest";
-import { execFileSync, spawnSync } from "node:child_process";
+import { execFileSync } from "node:child_process";
 import * as fs from "node:fs";
 import * as os from "node:os";
 import * as path from "node:path";
-import { analyze, at, checkDir, FIXTURES } from "./helpers/analyze.js";
+import { analyze, at, FIXTURES } from "./helpers/analyze.js";
+import { expectNoFindings, have, memcheck } from "./helpers/clean.js";
 import { mirrorNames } from "../server/src/model/boundary.js";
 
 const DIR = path.join(FIXTURES, "clean", "lightning-frontend");
-const ROOT = path.resolve(__dirname, "..");
-const have = (cmd: string) => spawnSync("sh", ["-c", `command -v ${cmd}`]).status === 0;
 const TOOLS = have("rustc") && have("g++") && have("valgrind");
 
 const DRIVER = `#include <complex>
@@ -58,12 +57,7 @@ int main() {
 
 describe("clean workspace: lightning-frontend", () => {
   it("ferrule reports nothing, in-process and through the shipped CLI (exit 0, the aid-not-proof line)", async () => {
-    const { lines } = await checkDir("clean/lightning-frontend");
-    expect(lines).toEqual([]);
-    const r = spawnSync(process.execPath, [path.join(ROOT, "bin", "ferrule.js"), "check", path.relative(ROOT, DIR)], { cwd: ROOT, encoding: "utf8" });
-    expect(r.status).toBe(0);
-    expect(r.stdout).toMatch(/no findings/i);
-    expect(r.stdout).toMatch(/not a proof of memory safety/);
+    await expectNoFindings("lightning-frontend");
   });
 
   it.skipIf(!TOOLS)("the code is right: rustc + g++ build it, and it runs clean under Valgrind memcheck", () => {
@@ -75,7 +69,7 @@ describe("clean workspace: lightning-frontend", () => {
       const exe = path.join(dir, "run");
       const blocks = fs.readdirSync(path.join(DIR, "blocks")).map((f) => path.join(DIR, "blocks", f));
       execFileSync("g++", ["-std=c++17", "-Wall", "-Werror", "-g", "-O0", "-I", path.join(DIR, "include"), "-o", exe, path.join(dir, "driver.cc"), ...blocks, lib, "-lpthread", "-ldl", "-lm"], { stdio: "pipe" });
-      const r = spawnSync("valgrind", ["--tool=memcheck", "--error-exitcode=97", "--leak-check=full", "--errors-for-leak-kinds=definite,indirect", "-q", exe], { encoding: "utf8", timeout: 60_000 });
+      const r = memcheck(exe);
       expect(r.stderr).toBe("");
       expect(r.stdout).toMatch(/strikes 1, first at 101000 ns/);
       expect(r.status).toBe(0);
