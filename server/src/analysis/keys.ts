@@ -84,6 +84,8 @@ export function keysOf(f: FileFacts | undefined, local?: ReadonlySet<string>): K
   for (const d of f.defines) decl.add("t:" + normName(d.name));
   for (const c of f.calls) use.add("s:" + c.callee);
   for (const a of f.asserts) use.add("t:" + normName(a.typeName));
+  // a name an item-level macro invocation mentions may be a symbol it defines (rules/symbols.ts)
+  for (const m of f.macroItems ?? []) for (const x of m.names) use.add("s:" + x);
   return { decl, use };
 }
 

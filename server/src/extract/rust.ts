@@ -4,7 +4,7 @@
 
 import type { Node, Tree } from "../parse/parser.js";
 import { parseText } from "../parse/parser.js";
-import type { AbiType, CachedItem, Field, ItemCache, FileFacts, FnDecl, Param, SourceAssert, TypeDecl } from "../model/types.js";
+import type { AbiType, CachedItem, Field, ItemCache, FileFacts, FnDecl, MacroItem, Param, SourceAssert, TypeDecl } from "../model/types.js";
 import type { ScalarKind } from "../model/targets.js";
 import { docAbove, emptyFacts, evalConst, rangeOf, walk } from "./common.js";
 import { rustExtractors } from "./hooks.js";
@@ -278,6 +278,30 @@ function movedItem(item: CachedItem, row: number): CachedItem {
  * Rust file facts. With an item cache (the language server, for open documents) and the file's
  * text, items whose text did not change since the previous extraction reuse its facts.
  */
+/** An item-level macro invocation (`m!(…);`, `m! { … }`) and the names in its arguments: the
+ * grammar leaves the arguments as a token tree, so its identifier tokens are read, and string
+ * literal tokens whose whole text is an identifier (a symbol passed as a string). */
+function macroItemOf(file: string, n: Node): MacroItem | undefined {
+  const inv = n.type === "macro_invocation" ? n : n.type === "expression_statement" && n.namedChildCount === 1 ? n.namedChild(0) : null;
+  if (!inv || inv.type !== "macro_invocation") return undefined;
+  const mac = inv.childForFieldName("macro")?.text ?? "";
+  if (mac === "macro_rules") return undefined;
+  const names = new Set<string>();
+  const visit = (t: Node, depth: number) => {
+    if (depth > 32) return;
+    for (const c of t.namedChildren) {
+      if (c.type === "identifier") names.add(c.text);
+      else if (c.type === "string_literal") {
+        const s = c.text.slice(1, -1);
+        if (/^[A-Za-z_][A-Za-z0-9_]*$/.test(s)) names.add(s);
+      } else if (c.type === "token_tree") visit(c, depth + 1);
+    }
+  };
+  for (const c of inv.namedChildren) if (c.type === "token_tree") visit(c, 0);
+  if (!names.size) return undefined;
+  return { macro: mac, names: [...names], range: rangeOf(file, inv) };
+}
+
 export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, text?: string): FileFacts {
   const facts = emptyFacts(file, "rust");
   const root = tree.rootNode;
@@ -409,6 +433,14 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
         case "const_item":
           readConstAssert(n);
           break;
+        case "macro_invocation":
+        case "expression_statement": {
+          // (not an item of the cache: read again on every extraction, see fromItems in
+          // lsp/engine.ts, which then takes the file-level scope)
+          const m = macroItemOf(file, n);
+          if (m) (facts.macroItems ??= []).push(m);
+          break;
+        }
       }
       if (key !== undefined && mark) {
         const pos = n.startPosition;

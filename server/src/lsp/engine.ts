@@ -108,7 +108,7 @@ function fromItems(f: FileFacts, order: NonNullable<ItemCache["order"]>): boolea
     for (const x of e.item.types) if (f.types[nt++] !== x) return false;
     for (const x of e.item.asserts) if (f.asserts[na++] !== x) return false;
   }
-  return nf === f.fns.length && nt === f.types.length && na === f.asserts.length && !f.defines.length && !f.calls.length;
+  return nf === f.fns.length && nt === f.types.length && na === f.asserts.length && !f.defines.length && !f.calls.length && !f.macroItems?.length;
 }
 
 /** The item whose rows (attributes and doc comments included) hold this line. */

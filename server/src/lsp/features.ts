@@ -167,7 +167,9 @@ export function hoverMarkdown(model: Model, item: Item, textOf: TextOf, roots: s
   const rust = fns.filter((f) => f.lang === "rust");
   const c = fns.filter((f) => f.lang !== "rust");
   for (const f of rust) parts.push(`Rust ${f.role === "import" ? "import" : "definition"} — ${where(roots, f.range)}\n\`\`\`rust\n${signatureText(f, textOf)}\n\`\`\``);
-  if (!rust.length) parts.push("_No Rust side found in the workspace._");
+  const macros = rust.length ? [] : model.macrosNaming(item.symbol);
+  if (macros.length) parts.push(`_No Rust definition ferrule can read; ${macros.map((m) => `\`${m.macro}!\` (${where(roots, m.range)})`).join(", ")} names it and may define it. ferrule expands no macro, so this function is not checked._`);
+  else if (!rust.length) parts.push("_No Rust side found in the workspace._");
   for (const f of c) parts.push(`${f.lang === "cpp" ? "C++" : "C"} ${f.role === "def" ? "definition" : "declaration"} — ${where(roots, f.range)}\n\`\`\`${f.lang === "cpp" ? "cpp" : "c"}\n${signatureText(f, textOf)}\n\`\`\``);
   if (!c.length) parts.push("_No C/C++ declaration found in the workspace._");
   const buffers = bufferLines(model, item.symbol);

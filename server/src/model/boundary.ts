@@ -1,7 +1,7 @@
 // The boundary model: every file's facts linked into one view of the seam. Built from FileFacts
 // only (no file reads), so it is cheap to rebuild after a one-file change.
 
-import type { AbiType, FileFacts, FnDecl, IncludeRef, TypeDecl } from "./types.js";
+import type { AbiType, FileFacts, FnDecl, IncludeRef, MacroItem, TypeDecl } from "./types.js";
 import { ALL_TRIPLES, type Triple } from "./targets.js";
 import { IncludeIndex } from "./includes.js";
 
@@ -34,6 +34,8 @@ export class Model {
   readonly symbols = new Map<string, SymbolGroup>();
   private readonly typesBy: Record<Side, Map<string, TypeDecl[]>> = { rust: new Map(), c: new Map() };
   private readonly definesBy = new Map<string, AbiType>();
+  /** Names mentioned by item-level Rust macro invocations → those invocations. */
+  private readonly macroNames = new Map<string, MacroItem[]>();
   private readonly includers = new Map<string, string[]>();
   private readonly fnIds = new Map<string, FnDecl>();
   private includeIndex: IncludeIndex | undefined;
@@ -66,6 +68,13 @@ export class Model {
         }
       }
       for (const d of f.defines) this.definesBy.set(d.name, d.type);
+      for (const m of f.macroItems ?? []) {
+        for (const x of m.names) {
+          const arr = this.macroNames.get(x) ?? [];
+          arr.push(m);
+          this.macroNames.set(x, arr);
+        }
+      }
       for (const inc of f.includes) {
         if (inc.system) continue;
         const r = this.resolveInclude(f.file, inc.path);
@@ -77,6 +86,12 @@ export class Model {
         }
       }
     }
+  }
+
+  /** The item-level Rust macro invocations whose arguments name this symbol: ferrule expands no
+   * macro, so any of them may define it (keys.ts relates their files by the name). */
+  macrosNaming(symbol: string): MacroItem[] {
+    return this.macroNames.get(symbol) ?? [];
   }
 
   /** Whether the workspace has any file of this side (see ModelConfig.workspaceSides). */

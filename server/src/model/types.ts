@@ -181,6 +181,19 @@ export interface FileFacts {
   cppGuarded?: boolean;
   /** Free-form per-family facts (e.g. ports, suppressions). */
   extra: Record<string, unknown>;
+  /** Rust: item-level macro invocations (`gain_kernel!(hyd_gain_f32, f32);`), which may define
+   * items ferrule cannot see (it expands no macro). Absent when the file has none. */
+  macroItems?: MacroItem[];
+}
+
+/** An item-level Rust macro invocation and the names its arguments mention: identifiers, and
+ * string literals that are a single identifier (the symbols it could export). */
+export interface MacroItem {
+  /** The macro's name as written (`gain_kernel`, `kernels::export`). */
+  macro: string;
+  names: string[];
+  /** The whole invocation. */
+  range: Range;
 }
 
 /** An expression at a call site, in a small language-neutral form. */
