@@ -62,7 +62,11 @@ export function formatText(findings: JsonFinding[], color: boolean): string {
   const counts = { error: 0, warning: 0, info: 0, hint: 0 };
   for (const f of findings) counts[f.severity]++;
   if (findings.length === 0) lines.push(`no findings. ${CLEAN_NOTE}`);
-  else lines.push(`${findings.length} finding(s): ${counts.error} error(s), ${counts.warning} warning(s), ${counts.info + counts.hint} note(s)`);
+  else {
+    lines.push(`${findings.length} finding(s): ${counts.error} error(s), ${counts.warning} warning(s), ${counts.info + counts.hint} note(s)`);
+    // notes only: as clean as a run gets, so it says what clean means
+    if (counts.error + counts.warning === 0) lines.push(`no errors or warnings. ${CLEAN_NOTE}`);
+  }
   return lines.join("\n") + "\n";
 }
 
