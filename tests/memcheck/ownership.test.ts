@@ -67,6 +67,25 @@ describe.skipIf(!TOOLS)("valgrind memcheck on the ownership fixtures (rustc stat
     expect(r.log).toMatch(/ltg_tracker_free/);
   });
 
+  it("copyable-owning-wrapper/bad/tally_block: hand-written copies that copy the pointer free the tracker and the sensor twice", () => {
+    const r = memcheck(program(path.join(ROOT, "copyable-owning-wrapper/bad/tally_block.cc"), ltg, "usercopy"));
+    expect(r.status, r.log).toBe(99);
+    expect(r.log).toMatch(/Invalid free\(\)/);
+    expect(r.log).toMatch(/ltg_tracker_free/);
+    expect(r.log).toMatch(/ltg_sensor_free/);
+  });
+
+  it("foreign-allocator-free/bad/stroke_share: a std::shared_ptr without a deleter frees a Rust CString with delete", () => {
+    // C++ [util.smartptr.shared.dest]/1: with no deleter the destructor does `delete p`. The
+    // Rust CString came from the global allocator, which in a staticlib is `System` (std::alloc
+    // docs: "staticlibs are guaranteed to use the System by default"), i.e. malloc here, so
+    // memcheck sees memory malloc made released by operator delete.
+    const r = memcheck(program(path.join(ROOT, "foreign-allocator-free/bad/stroke_share.cc"), ltg, "shared"));
+    expect(r.status, r.log).toBe(99);
+    expect(r.log).toMatch(/Mismatched free\(\) \/ delete \/ delete \[\]/);
+    expect(r.log).toMatch(/_Sp_counted_ptr<char\*/);
+  });
+
   it("move-keeps-source-handle/bad frees the tracker twice after a move: invalid free", () => {
     const r = memcheck(program(path.join(ROOT, "move-keeps-source-handle/bad/stroke_block.cc"), ltg, "move"));
     expect(r.status, r.log).toBe(99);
@@ -85,6 +104,10 @@ describe.skipIf(!TOOLS)("valgrind memcheck on the ownership fixtures (rustc stat
     const runs = [
       memcheck(program(path.join(ROOT, "wrapper-leaks-handle/good/stroke_block.cc"), ltg, "good_raii")),
       memcheck(program(path.join(ROOT, "borrower-takes-ownership/good/main.cc"), staticlib(path.join(ROOT, "borrower-takes-ownership/good/lib.rs"), "pickgood"), "good_borrow")),
+      // hand-written copies that make a new tracker; deleted copies
+      memcheck(program(path.join(ROOT, "copyable-owning-wrapper/good/tally_block.cc"), ltg, "good_usercopy")),
+      // std::shared_ptr with the release function (or a lambda calling it) as deleter
+      memcheck(program(path.join(ROOT, "foreign-allocator-free/good/stroke_share.cc"), ltg, "good_shared")),
     ];
     for (const r of runs) {
       expect(r.log).toMatch(/ERROR SUMMARY: 0 errors/);
@@ -139,20 +162,24 @@ describe.skipIf(!(have("rustc") && have("g++")))("fixed fixtures still compile (
       fs.mkdirSync(path.join(dir, "common"));
       fs.mkdirSync(path.join(dir, "x", "y"), { recursive: true });
       fs.writeFileSync(path.join(dir, "common", "ltg.h"), files["common/ltg.h"]!);
-      const cc = Object.keys(files).find((k) => k.startsWith(rel) && k.endsWith(".cc"))!;
-      const out = path.join(dir, "x", "y", "block.cc"); // ../../common/ltg.h resolves as in the fixture tree
-      fs.writeFileSync(out, files[cc]!);
-      const r = spawnSync("g++", ["-std=c++17", "-fsyntax-only", out], { encoding: "utf8" });
-      if (rel === "copyable-owning-wrapper/bad") {
-        // With the copy members deleted, the fixture's own copy (`stroke_block b = a;`) no longer
-        // compiles: the double free became a compile error, and nothing else is wrong.
-        const errs = r.stderr.split("\n").filter((l) => / error: /.test(l));
-        expect(r.status).not.toBe(0);
-        expect(errs.length, r.stderr).toBe(1);
-        expect(errs[0]).toMatch(/block\.cc:\d+:\d+: error: use of deleted function .stroke_block::stroke_block\(const stroke_block&\)/);
-        return;
+      const ccs = Object.keys(files).filter((k) => k.startsWith(rel) && k.endsWith(".cc"));
+      expect(ccs.length).toBeGreaterThan(0);
+      for (const cc of ccs) {
+        const out = path.join(dir, "x", "y", path.basename(cc)); // ../../common/ltg.h resolves as in the fixture tree
+        fs.writeFileSync(out, files[cc]!);
+        const r = spawnSync("g++", ["-std=c++17", "-fsyntax-only", out], { encoding: "utf8" });
+        if (rel === "copyable-owning-wrapper/bad") {
+          // With the copy members deleted, the fixture's own copies (`stroke_block b = a;`,
+          // `tally_block b(a);`) no longer compile: each double free became a compile error, and
+          // nothing else is wrong.
+          const errs = r.stderr.split("\n").filter((l) => / error: /.test(l));
+          expect(r.status).not.toBe(0);
+          expect(errs.length, r.stderr).toBeGreaterThan(0);
+          for (const e of errs) expect(e, `${r.stderr}\n--- fixed source:\n${files[cc]}`).toMatch(/\.cc:\d+:\d+: error: use of deleted function .(\w+)::\1\(const \1&\)/);
+          continue;
+        }
+        expect(r.status, `${r.stderr}\n--- fixed source:\n${files[cc]}`).toBe(0);
       }
-      expect(r.status, `${r.stderr}\n--- fixed source:\n${files[cc]}`).toBe(0);
     });
   }
 });

@@ -50,10 +50,15 @@ const CASES: Record<string, string[]> = {
   "panic-across-c-abi": ["panic-across-c-abi/bad/lib.rs:15", "panic-across-c-abi/bad/lib.rs:31", "panic-across-c-abi/bad/lib.rs:36"],
   "handle-types-indistinct": ["handle-types-indistinct/bad/lib.rs:14", "handle-types-indistinct/bad/lib.rs:21"],
   "wrapper-leaks-handle": ["wrapper-leaks-handle/bad/stroke_block.cc:16"],
-  "copyable-owning-wrapper": ["copyable-owning-wrapper/bad/stroke_block.cc:4"],
+  // stroke_block: implicit copies; tally_block: in-class user-written copy constructor and copy
+  // assignment that copy the pointer; gain_block: an out-of-class user-written copy constructor
+  "copyable-owning-wrapper": ["copyable-owning-wrapper/bad/stroke_block.cc:4", "copyable-owning-wrapper/bad/tally_block.cc:5", "copyable-owning-wrapper/bad/tally_block.cc:21"],
   "move-keeps-source-handle": ["move-keeps-source-handle/bad/stroke_block.cc:11"],
   "handle-used-after-release": ["handle-used-after-release/bad/calibrate.cc:8", "handle-used-after-release/bad/calibrate.cc:9"],
-  "foreign-allocator-free": ["foreign-allocator-free/bad/labels.cc:11", "foreign-allocator-free/bad/labels.cc:17", "foreign-allocator-free/bad/labels.cc:21"],
+  // stroke_share: std::shared_ptr without a deleter, built in an expression (7), reset(p) on a
+  // field (14), a field initialised in the constructor (18), a local taking over a raw pointer (23)
+  "foreign-allocator-free": ["foreign-allocator-free/bad/labels.cc:11", "foreign-allocator-free/bad/labels.cc:17", "foreign-allocator-free/bad/labels.cc:21",
+    "foreign-allocator-free/bad/stroke_share.cc:8", "foreign-allocator-free/bad/stroke_share.cc:14", "foreign-allocator-free/bad/stroke_share.cc:18", "foreign-allocator-free/bad/stroke_share.cc:23"],
   "handle-kind-mismatch": ["handle-kind-mismatch/bad/channels.cc:6", "handle-kind-mismatch/bad/channels.cc:11"],
 };
 
@@ -140,5 +145,61 @@ describe("ownership on broken and large input", () => {
     expect(at(findings, "handle-used-after-release")).toEqual([`wrapper-leaks-handle/good/big.cc:${1000 + 5}`]);
     expect(findings.filter((f) => f.rule === "copyable-owning-wrapper" || f.rule === "wrapper-leaks-handle")).toEqual([]);
     expect(ms).toBeLessThan(20_000);
+  });
+});
+
+describe("copyable-owning-wrapper: user-written copies; foreign-allocator-free: std::shared_ptr", () => {
+  const common = () => read("copyable-owning-wrapper/good", true);
+  const withCc = async (cc: string) => {
+    const files = { ...common(), "extra/block.cc": cc };
+    const { findings } = await analyze(files);
+    return findings.filter((f) => OWN.has(f.rule) && f.range.file.includes("/extra/"));
+  };
+  it("a copy that stores the pointer and then hands it to a function (a retain of a reference-counted handle) is not reported", async () => {
+    const own = await withCc(`#include "../common/ltg.h"
+extern "C" void host_track_ref(ltg_tracker *t); // a host-side reference count
+class shared_tally {
+public:
+    explicit shared_tally(uint32_t w) : tracker_(ltg_tracker_new(w)) {}
+    shared_tally(const shared_tally &o) : tracker_(o.tracker_) { host_track_ref(tracker_); }
+    shared_tally &operator=(const shared_tally &) = delete;
+    ~shared_tally() { ltg_tracker_free(tracker_); }
+private:
+    ltg_tracker *tracker_;
+};
+`);
+    expect(at(own, "copyable-owning-wrapper"), show(own)).toEqual([]);
+  });
+  it("a copy assignment that copies the pointer is reported even when the copy constructor is deleted", async () => {
+    const own = await withCc(`#include "../common/ltg.h"
+class tally {
+public:
+    explicit tally(uint32_t w) : tracker_(ltg_tracker_new(w)) {}
+    tally(const tally &) = delete;
+    tally &operator=(const tally &o) { tracker_ = o.tracker_; return *this; }
+    ~tally() { ltg_tracker_free(tracker_); }
+private:
+    ltg_tracker *tracker_;
+};
+`);
+    expect(at(own, "copyable-owning-wrapper"), show(own)).toEqual(["extra/block.cc:2"]);
+    expect(own[0]!.message).toContain("user-written copy assignment that copies the pointer");
+    expect(own[0]!.related.some((r) => r.range.line === 5)).toBe(true);
+  });
+  it("std::shared_ptr of a C++ object, std::make_shared and shared_ptr(p, release) give nothing; unique_ptr::reset(p) with the default deleter is reported", async () => {
+    const own = await withCc(`#include <memory>
+#include "../common/ltg.h"
+struct note { int v; };
+int f(uint32_t ch) {
+    std::shared_ptr<note> a(new note{1});
+    auto b = std::make_shared<note>(note{2});
+    std::shared_ptr<char> c(ltg_label(ch), &ltg_label_free);
+    std::unique_ptr<char> d;
+    d.reset(ltg_label(ch));
+    return a->v + b->v + (c ? 1 : 0);
+}
+`);
+    expect(at(own, "foreign-allocator-free"), show(own)).toEqual(["extra/block.cc:9"]);
+    expect(own[0]!.message).toContain("default deleter");
   });
 });

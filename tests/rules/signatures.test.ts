@@ -21,6 +21,11 @@ describe("signatures family", () => {
       "kern.h:15 callback-mismatch",
       "kern.h:16 arity-mismatch",
       "kern.h:17 pointer-constness",
+      // ops.rs: #[repr(C)] fn-pointer fields C may leave NULL (the struct's comment names
+      // on_overflow; log's own comment; `_Nullable` on on_close); on_strike is required: no finding
+      "ops.rs:10 callback-mismatch",
+      "ops.rs:11 callback-mismatch",
+      "ops.rs:12 callback-mismatch",
     ].sort());
     const byLine = (l: number, rule: string) => findings.find((f) => f.range.line === l - 1 && f.rule === rule)!;
     // usize vs int: a width slip on 64-bit targets, a signedness slip on 32-bit ones
@@ -34,11 +39,20 @@ describe("signatures family", () => {
     // Rust writing through a pointer the header declares const is an error; the reverse a warning
     expect(byLine(10, "pointer-constness").severity).toBe("error");
     expect(byLine(17, "pointer-constness").severity).toBe("warning");
-    // every finding carries the Rust side as related location
+    // every finding carries the other side as related location
     for (const f of findings) {
       expect(f.related.length).toBeGreaterThan(0);
-      expect(f.related[0]!.range.file).toMatch(/kern\.rs$/);
+      expect(f.related[0]!.range.file).toMatch(f.range.file.endsWith("kern.h") ? /kern\.rs$/ : /ops\.h$/);
     }
+    // nullable fn-pointer fields: the C field is the related location, the evidence is named
+    const field = (l: number) => findings.find((f) => f.range.file.endsWith("ops.rs") && f.range.line === l - 1)!;
+    expect(field(10).related[0]!.range.line + 1).toBe(13);
+    expect(field(10).message).toContain("on_overflow may be NULL");
+    expect(field(11).related[0]!.range.line + 1).toBe(15);
+    expect(field(11).message).toContain("the comment of `log`");
+    expect(field(12).related[0]!.range.line + 1).toBe(16);
+    expect(field(12).message).toContain("`_Nullable` on `on_close`");
+    for (const l of [10, 11, 12]) expect(field(l).severity).toBe("warning");
     expect(byLine(8, "param-type-mismatch").related[0]!.range.line + 1).toBe(7);
   });
 
@@ -63,5 +77,45 @@ describe("pointee signedness", () => {
       "k.h": "#include <stdint.h>\n#include <stddef.h>\nvoid tag(const char *s);\nvoid iq(const int16_t *s, size_t n);\n",
     });
     expect(at(findings, "param-signedness")).toEqual(["k.h:4"]);
+  });
+});
+
+describe("nullable function-pointer fields (callback-mismatch)", () => {
+  // A Rust fn pointer is never null (Rust Reference, "Function pointer types"); Option<fn> is the
+  // nullable one with the same size (std::option, "Representation").
+  const H = `#include <stdint.h>
+/* Seismic-array trigger hooks. Any entry may be NULL. */
+typedef struct seis_hooks {
+    void (*on_trigger)(void *ctx, uint32_t channel);
+    void (*on_clear)(void *ctx);
+} seis_hooks;
+/* Plain table: the host fills every entry. */
+typedef struct seis_table {
+    void (*on_trigger)(void *ctx, uint32_t channel);
+} seis_table;
+void seis_install(const seis_hooks *h, const seis_table *t);
+`;
+  const rs = (hooks: string) => `use core::ffi::c_void;
+pub type ClearFn = unsafe extern "C" fn(*mut c_void);
+#[repr(C)]
+pub struct SeisHooks {
+${hooks}
+}
+#[repr(C)]
+pub struct SeisTable {
+    pub on_trigger: unsafe extern "C" fn(*mut c_void, u32),
+}
+#[no_mangle]
+pub unsafe extern "C" fn seis_install(h: *const SeisHooks, t: *const SeisTable) {}
+`;
+  test("a struct comment that says any entry may be NULL covers every fn-pointer field; a table without such words gives nothing", async () => {
+    const { analyze, at } = await import("../helpers/analyze.js");
+    const { findings } = await analyze({ "trig.h": H, "trig.rs": rs("    pub on_trigger: unsafe extern \"C\" fn(*mut c_void, u32),\n    pub on_clear: ClearFn,") });
+    expect(at(findings, "callback-mismatch").sort()).toEqual(["trig.rs:5", "trig.rs:6"]);
+  });
+  test("Option<unsafe extern \"C\" fn> and Option<alias> fields are correct", async () => {
+    const { analyze } = await import("../helpers/analyze.js");
+    const { findings } = await analyze({ "trig.h": H, "trig.rs": rs("    pub on_trigger: Option<unsafe extern \"C\" fn(*mut c_void, u32)>,\n    pub on_clear: Option<ClearFn>,") });
+    expect(findings.map((f) => `${f.rule} ${f.message}`)).toEqual([]);
   });
 });

@@ -106,6 +106,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
             fld.type = r.type;
           }
           if (bits !== undefined) fld.bits = bits;
+          fieldNotes(f, fld);
           decl.fields.push(fld);
           continue;
         }
@@ -120,9 +121,17 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
         for (const d of declarators) {
           const r = applyDeclarator(d, base, hasConstChild(f), innerCtx);
           if (cx.nameFromError !== undefined) r.name = cx.nameFromError;
+          // `void (*_Nullable on_close)(void *)`: the grammar takes the qualifier for the name
+          // and leaves the real one in an ERROR node after it
+          if (NULLABLE_QUALIFIERS.has(r.name) && r.nameNode) {
+            const err = r.nameNode.parent?.nextNamedSibling;
+            const real = err?.type === "ERROR" ? err.namedChildren.find((c) => c.type === "identifier" || c.type === "field_identifier") : undefined;
+            if (real) r.name = real.text;
+          }
           const fld: Field & { attrs?: string[] } = { name: r.name, type: r.type, text: f.text, range: rangeOf(file, f) };
           if (bits !== undefined) fld.bits = bits;
           if (fattrs.length) fld.attrs = fattrs;
+          fieldNotes(f, fld);
           decl.fields.push(fld);
         }
       }
@@ -315,6 +324,29 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
  *  - `_Alignas(8) char d;` / `alignas(8) char d;` (<stdalign.h>): a macro_type_specifier named
  *    `_Alignas` holding the number in an ERROR node and the real type in a type_descriptor.
  */
+const NULLABLE_QUALIFIERS = new Set(["_Nullable", "__nullable"]);
+
+/**
+ * A field's comment (above it, or after it on its line) and whether the field itself carries the
+ * clang nullability qualifier `_Nullable`. The grammar does not know the qualifier and leaves it
+ * as a lone identifier (often inside an ERROR node); the qualifiers of a callback's own
+ * parameters (inside its parameter list) are not the field's.
+ */
+function fieldNotes(f: Node, fld: Field): void {
+  const doc = docAbove(f, []) || trailingComment(f);
+  if (doc) fld.doc = doc;
+  const stack: Node[] = [...f.children];
+  for (let i = 0; stack.length && i < 2000; i++) {
+    const n = stack.pop()!;
+    if (n.type === "parameter_list" || n.type.endsWith("comment")) continue;
+    if (n.childCount === 0) {
+      if (NULLABLE_QUALIFIERS.has(n.text)) fld.nullableQual = true;
+      continue;
+    }
+    stack.push(...n.children);
+  }
+}
+
 function cFieldQuirk(f: Node): { name: string; type?: AbiType; align?: number; declarator?: Node } | undefined {
   const spec = f.childForFieldName("type");
   if (!spec) return undefined;

@@ -131,19 +131,33 @@ function catchPanics(f: Finding, model: Model): Fix[] {
   }];
 }
 
+interface CopyReplace { kind: "copyCtor" | "copyAssign"; def: Range; decl: Range | null; inClass: boolean }
+
 function deleteCopies(f: Finding): Fix[] {
   const cls = f.data?.cls as string | undefined;
   if (!cls || f.data?.defaulted) return [];
   const dtor = f.data?.dtor as Range | null | undefined;
-  const decl = [f.data?.copyCtor ? `${cls}(const ${cls} &) = delete;` : "", f.data?.copyAssign ? `${cls} &operator=(const ${cls} &) = delete;` : ""].filter(Boolean);
-  if (!decl.length) return [];
+  const text = (k: "copyCtor" | "copyAssign") => (k === "copyCtor" ? `${cls}(const ${cls} &) = delete;` : `${cls} &operator=(const ${cls} &) = delete;`);
+  // user-written copy members that copy the pointer become deleted declarations
+  const edits: Fix["edits"] = [];
+  for (const r of (f.data?.replace ?? []) as CopyReplace[]) {
+    if (r.inClass) edits.push({ range: r.def, newText: text(r.kind) });
+    else if (r.decl) {
+      edits.push({ range: r.decl, newText: text(r.kind) });
+      edits.push({ range: r.def, newText: "" });
+    } else return [];
+  }
+  const decl = [f.data?.copyCtor ? text("copyCtor") : "", f.data?.copyAssign ? text("copyAssign") : ""].filter(Boolean);
+  if (!decl.length && !edits.length) return [];
+  const title = `Delete the copy members of \`${cls}\``;
+  if (!decl.length) return [{ title, edits, preferred: true }];
   if (dtor) {
     const ind = sp(dtor.col);
-    return [{ title: `Delete the copy members of \`${cls}\``, edits: [{ range: point(dtor.file, dtor.endLine, dtor.endCol), newText: decl.map((d) => `\n${ind}${d}`).join("") }], preferred: true }];
+    return [{ title, edits: [...edits, { range: point(dtor.file, dtor.endLine, dtor.endCol), newText: decl.map((d) => `\n${ind}${d}`).join("") }], preferred: true }];
   }
   const body = f.data?.classBody as Range | undefined;
   if (!body) return [];
-  return [{ title: `Delete the copy members of \`${cls}\``, edits: [{ range: point(body.file, body.endLine, body.endCol - 1), newText: `public:\n${decl.map((d) => `    ${d}\n`).join("")}` }], preferred: true }];
+  return [{ title, edits: [...edits, { range: point(body.file, body.endLine, body.endCol - 1), newText: `public:\n${decl.map((d) => `    ${d}\n`).join("")}` }], preferred: true }];
 }
 
 function nullSource(f: Finding): Fix[] {
@@ -158,6 +172,11 @@ function nullSource(f: Finding): Fix[] {
 }
 
 function useReleaser(f: Finding): Fix[] {
+  const after = f.data?.deleterAfter as Range | null | undefined;
+  if (after && typeof f.data?.releaser === "string") {
+    // a std::shared_ptr made without a deleter: pass the release function as its second argument
+    return [{ title: `Pass \`&${f.data.releaser}\` as the deleter`, edits: [{ range: point(after.file, after.endLine, after.endCol), newText: `, &${f.data.releaser}` }], preferred: true }];
+  }
   const rel = f.data?.releaser, arg = f.data?.arg;
   const r = f.data?.callRange as Range | undefined;
   if (typeof rel !== "string" || typeof arg !== "string" || !r) return [];

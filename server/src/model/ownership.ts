@@ -97,13 +97,30 @@ export type CEvent =
   | { k: "swap"; a: CRef; b: CRef; range: Range }
   | { k: "delete"; arg: CArg; array: boolean; range: Range; exitsAfter: boolean }
   | { k: "use"; ref: CRef; range: Range }
-  | { k: "return"; arg: CArg | null; range: Range };
+  | { k: "return"; arg: CArg | null; range: Range }
+  /** A smart pointer made to own `arg`: `std::shared_ptr<T>(p)`, `std::unique_ptr<T>(p)` in an
+   * expression, or a local/field declaration of one initialised with `p`. */
+  | { k: "smart"; up: UniquePtrDecl; arg: CArg; range: Range }
+  /** `obj.reset(p)` / `obj.reset(p, d)` (the rule looks up whether `obj` is a smart pointer). */
+  | { k: "reset"; obj: CRef; arg: CArg; deleter?: DeleterArg; range: Range };
+
+/** A deleter passed as a constructor or reset argument: a function name (`&sonar_fir_free`), or
+ * anything else (a lambda, a functor object) with the calls and deletes its body makes. */
+export interface DeleterArg {
+  name?: string;
+  text: string;
+  calls: string[];
+  deletes: boolean;
+}
 
 export type MemberKind = "ctor" | "dtor" | "copyCtor" | "copyAssign" | "moveCtor" | "moveAssign" | "method";
 
-/** `std::unique_ptr<T, D>` declared as a field or a local. */
+/** `std::unique_ptr<T, D>` or `std::shared_ptr<T>` declared as a field or a local (or built in an
+ * expression). */
 export interface UniquePtrDecl {
   name: string;
+  /** "shared" for std::shared_ptr (its deleter is never part of the type); absent for unique_ptr. */
+  smart?: "shared";
   pointee: string;
   /** "default" (std::default_delete: `delete`), the deleter function name, or a functor class. */
   deleter: { k: "default" } | { k: "fn"; name: string } | { k: "functor"; cls: string } | { k: "unknown"; text: string };
@@ -111,6 +128,12 @@ export interface UniquePtrDecl {
   initCall?: string;
   /** The deleter passed to the constructor (`&sonar_fir_free`), when given there. */
   initDeleter?: string;
+  /** Any other deleter passed to the constructor (a lambda, a functor object). */
+  initDeleterOther?: DeleterArg;
+  /** Where the pointer argument of the constructor is written (fixes add a deleter after it). */
+  initArgRange?: Range;
+  /** A local initialised in its declaration: checked at its "smart" event, in flow order. */
+  byEvent?: boolean;
   range: Range;
 }
 

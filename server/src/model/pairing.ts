@@ -218,7 +218,8 @@ export function parseDocAnnotation(doc: string): { bufs: { ptr: string; factors:
   return out;
 }
 
-const NULL_DOC = /\b(may|can|might) be (NULL|null|nullptr)\b|\bNULL (is allowed|allowed|disables|means)\b|\boptional\b|\bor NULL\b/;
+/** Words of a doc comment that say a pointer may be NULL (a C header's prose). */
+export const NULL_DOC = /\b(may|can|might) be (NULL|null|nullptr)\b|\bNULL (is allowed|allowed|disables|means)\b|\boptional\b|\bor NULL\b/;
 
 function paramIndexByName(fn: FnDecl | undefined, name: string): number {
   return fn ? fn.params.findIndex((p) => p.name === name) : -1;

@@ -95,6 +95,10 @@ export interface Field {
   range: Range;
   /** C bit-field width, when present. */
   bits?: number;
+  /** C: the comment directly above the field or after it on its line (without comment markers). */
+  doc?: string;
+  /** C: a nullability qualifier `_Nullable` on the field itself (not on a callback's parameters). */
+  nullableQual?: boolean;
 }
 
 export interface Repr {

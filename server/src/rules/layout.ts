@@ -58,7 +58,7 @@ export const NOT_PORTABLE: RuleMeta = {
   why: "The layout depends on compiler rules no ABI document fixes; check it with the compiler for that target or avoid the construct at the boundary.",
 };
 
-interface Pair {
+export interface Pair {
   rust: TypeDecl;
   c: TypeDecl;
   /** How they were matched, for messages. */
@@ -104,7 +104,19 @@ function innerPair(model: Model, r: AbiType, c: AbiType): { r: TypeDecl; c: Type
   return { r: rd, c: cd, byValue };
 }
 
+const pairsCache = new WeakMap<Model, Pair[]>();
+
+/** The mirror pairs of a model (computed once per model: the signatures family asks too). */
 export function findPairs(model: Model): Pair[] {
+  let hit = pairsCache.get(model);
+  if (!hit) {
+    hit = computePairs(model);
+    pairsCache.set(model, hit);
+  }
+  return hit;
+}
+
+function computePairs(model: Model): Pair[] {
   const pairs = new Map<string, Pair>();
   const add = (rust: TypeDecl, c: TypeDecl, via: string, byValue: boolean) => {
     const key = `${rust.id}|${c.id}`;

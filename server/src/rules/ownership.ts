@@ -19,7 +19,7 @@
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range } from "../model/types.js";
-import type { CArg, CClass, CEvent, CFlow, COwnFacts, CRef, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl } from "../model/ownership.js";
+import type { CArg, CClass, CEvent, CFlow, COwnFacts, CRef, DeleterArg, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl } from "../model/ownership.js";
 import { finding, type Finding, type GatheredItem, type Related, type RuleFamily, type RuleMeta } from "./api.js";
 
 // ------------------------------------------------------------------ rule metadata
@@ -69,8 +69,8 @@ export const WRAPPER_LEAKS: RuleMeta = {
 export const COPYABLE_WRAPPER: RuleMeta = {
   id: "copyable-owning-wrapper",
   severity: "error",
-  summary: "A C++ class releases a Rust handle in its destructor but can still be copied (no deleted or user-defined copy constructor / copy assignment: the rule of three/five).",
-  why: "The implicit copy duplicates the raw pointer: both objects' destructors call the release function on the same handle (double free), and the first one leaves the other dangling.",
+  summary: "A C++ class releases a Rust handle in its destructor but a copy shares the handle: an implicit or defaulted copy constructor / copy assignment (the rule of three/five), or a user-written one that copies the pointer.",
+  why: "The copy duplicates the raw pointer: both objects' destructors call the release function on the same handle (double free), and the first one leaves the other dangling.",
 };
 export const MOVE_KEEPS: RuleMeta = {
   id: "move-keeps-source-handle",
@@ -87,7 +87,7 @@ export const USE_AFTER_RELEASE: RuleMeta = {
 export const FOREIGN_FREE: RuleMeta = {
   id: "foreign-allocator-free",
   severity: "error",
-  summary: "free(), delete, delete[] or a std::unique_ptr with the default deleter is applied to a pointer that a Rust function allocated.",
+  summary: "free(), delete, delete[], a std::unique_ptr with the default deleter or a std::shared_ptr without a deleter is applied to a pointer that a Rust function allocated.",
   why: "Rust's allocator is not necessarily malloc, and even when it is, Box/CString memory must be taken back by Rust so the destructor runs and the size matches; freeing it from C++ corrupts the heap or skips the destructor.",
 };
 export const KIND_MISMATCH: RuleMeta = {
@@ -531,7 +531,7 @@ function checkPanics(model: Model, out: Finding[]): void {
 interface CIndex {
   flows: CFlow[];
   byClass: Map<string, CFlow[]>;
-  sources: Map<string, Map<string, { src: CtorInfo; range: Range; deleterArg?: string }>>;
+  sources: Map<string, Map<string, FieldSource>>;
   fieldNames: Map<string, Set<string>>;
   classes: Map<string, CClass[]>;
   /** C/C++ helper functions that pass parameter i to a Rust releaser. */
@@ -607,8 +607,17 @@ interface SlotState {
   released?: { range: Range; by: string; reported?: boolean; reportedAgain?: boolean };
 }
 
-function deleterOf(up: UniquePtrDecl, ci: CIndex): string | undefined {
+function deleterOf(up: UniquePtrDecl, ci: CIndex, om: OwnershipModel): string | undefined {
   if (up.initDeleter) return up.initDeleter;
+  if (up.initDeleterOther) {
+    // a lambda deleter: the release function (or free / delete) its body calls
+    const o = up.initDeleterOther;
+    const rel = o.calls.find((c) => releasersAt(om, ci, c).length);
+    if (rel) return rel;
+    if (o.calls.some((c) => FREE_FNS.has(c))) return "free";
+    if (o.deletes) return "delete";
+    return undefined;
+  }
   if (up.deleter.k === "fn") return up.deleter.name;
   if (up.deleter.k === "functor") {
     const key = `${up.deleter.cls}::operator()`;
@@ -623,26 +632,45 @@ function deleterOf(up: UniquePtrDecl, ci: CIndex): string | undefined {
   return undefined;
 }
 
-function checkUniquePtr(up: UniquePtrDecl, src: CtorInfo | undefined, srcRange: Range | undefined, om: OwnershipModel, ci: CIndex, out: Finding[]): void {
+/** A smart pointer `up` that takes over a handle made by `src`. `argRange` is where the pointer
+ * argument is written (a fix adds the release function as deleter after it). */
+function checkUniquePtr(up: UniquePtrDecl, src: CtorInfo | undefined, srcRange: Range | undefined, om: OwnershipModel, ci: CIndex, out: Finding[], argRange?: Range, subject?: string): void {
   if (!src) return;
   const rel: Related[] = [{ range: srcRange ?? up.range, message: `\`${src.fn.symbol}\` allocates it in Rust` }];
-  if (up.deleter.k === "default") {
+  if (up.smart === "shared" && !up.initDeleter && !up.initDeleterOther) {
+    // std::shared_ptr<T>(p) with no deleter destroys p with `delete p` (C++ [util.smartptr.shared.dest]/1;
+    // reset(p) is shared_ptr(p).swap(*this), [util.smartptr.shared.mod]/3)
+    const fixRel = om.releasersFor(src)[0];
+    const what = subject ?? (up.name ? `\`std::shared_ptr<${up.pointee}>\` \`${up.name}\` is given no deleter` : `this \`std::shared_ptr<${up.pointee}>\` is given no deleter`);
+    out.push(finding(FOREIGN_FREE, up.range,
+      `${what}, so it destroys the handle made by Rust \`${src.fn.symbol}\` with \`delete\`${fixRel ? `; pass \`&${fixRel.fn.symbol}\` as its deleter` : ""}`,
+      rel, { data: { releaser: fixRel?.fn.symbol, deleterAfter: argRange ?? null } }));
+    return;
+  }
+  if (up.smart !== "shared" && up.deleter.k === "default") {
     const fixRel = om.releasersFor(src)[0];
     out.push(finding(FOREIGN_FREE, up.range,
-      `\`std::unique_ptr<${up.pointee}>\` \`${up.name}\` uses the default deleter (\`delete\`) on a handle made by Rust \`${src.fn.symbol}\`${fixRel ? `; give it \`${fixRel.fn.symbol}\` as deleter` : ""}`,
+      `\`std::unique_ptr<${up.pointee}>\`${up.name ? ` \`${up.name}\`` : ""} uses the default deleter (\`delete\`) on a handle made by Rust \`${src.fn.symbol}\`${fixRel ? `; give it \`${fixRel.fn.symbol}\` as deleter` : ""}`,
       rel, { data: { releaser: fixRel?.fn.symbol } }));
     return;
   }
-  const d = deleterOf(up, ci);
+  const d = deleterOf(up, ci, om);
   if (!d) return;
   if (d === "delete" || FREE_FNS.has(d)) {
-    out.push(finding(FOREIGN_FREE, up.range, `\`${up.name}\`'s deleter calls \`${d}\` on a handle made by Rust \`${src.fn.symbol}\``, rel));
+    out.push(finding(FOREIGN_FREE, up.range, `${up.name ? `\`${up.name}\`'s` : "the"} deleter calls \`${d}\` on a handle made by Rust \`${src.fn.symbol}\``, rel));
     return;
   }
   const rels = releasersAt(om, ci, d);
   if (rels.length && !rels.some((r) => om.pairs(r.rel, src))) {
-    out.push(finding(KIND_MISMATCH, up.range, `\`${up.name}\` holds a handle from \`${src.fn.symbol}\` but its deleter \`${d}\` releases another handle type`, rel));
+    out.push(finding(KIND_MISMATCH, up.range, `${up.name ? `\`${up.name}\`` : `this \`std::${up.smart === "shared" ? "shared" : "unique"}_ptr\``} holds a handle from \`${src.fn.symbol}\` but its deleter \`${d}\` releases another handle type`, rel));
   }
+}
+
+/** The smart pointer declaration of field `field` of class `cls`, if it is one. */
+function fieldUptr(ci: CIndex, cls: string | undefined, field: string): UniquePtrDecl | undefined {
+  if (!cls) return undefined;
+  for (const c of ci.classes.get(cls) ?? []) for (const f of c.fields) if (f.name === field && f.uptr) return f.uptr;
+  return undefined;
 }
 
 function classFields(ci: CIndex, name: string | undefined): Set<string> {
@@ -657,10 +685,12 @@ function classFields(ci: CIndex, name: string | undefined): Set<string> {
 }
 
 /** Class-level sources of each field: `this.f` → constructor that fills it. */
-function fieldSources(ci: CIndex, om: OwnershipModel, cls: string): Map<string, { src: CtorInfo; range: Range; deleterArg?: string }> {
+interface FieldSource { src: CtorInfo; range: Range; deleterArg?: string; deleterOther?: DeleterArg; argRange?: Range }
+
+function fieldSources(ci: CIndex, om: OwnershipModel, cls: string): Map<string, FieldSource> {
   const hit = ci.sources.get(cls);
   if (hit) return hit;
-  const m = new Map<string, { src: CtorInfo; range: Range; deleterArg?: string }>();
+  const m = new Map<string, FieldSource>();
   ci.sources.set(cls, m);
   const fields = classFields(ci, cls);
   for (const c of ci.classes.get(cls) ?? []) {
@@ -675,7 +705,8 @@ function fieldSources(ci: CIndex, om: OwnershipModel, cls: string): Map<string, 
       const s = ctorFor(om, ci, e.rhs.call);
       if (!s) continue;
       const k = keyOf(e.lhs, fl, fields);
-      if (k.startsWith("this.")) m.set(k.slice(5), { src: s, range: e.range, deleterArg: (e as { deleterArg?: string }).deleterArg });
+      const x = e as { deleterArg?: string; deleterOther?: DeleterArg };
+      if (k.startsWith("this.")) m.set(k.slice(5), { src: s, range: e.range, deleterArg: x.deleterArg, deleterOther: x.deleterOther, argRange: e.rhs.range });
     }
   }
   return m;
@@ -721,6 +752,26 @@ function checkFlow(fl: CFlow, om: OwnershipModel, ci: CIndex, model: Model, out:
         const sa = state.get(ka), sb = state.get(kb);
         state.set(ka, sb ?? {});
         state.set(kb, sa ?? {});
+        break;
+      }
+      case "smart": {
+        const s = slotOf(e.arg);
+        if (s.src) checkUniquePtr(e.up, s.src, s.srcRange, om, ci, out, e.up.initArgRange,
+          e.up.name ? undefined : `the \`std::shared_ptr<${e.up.pointee}>\` built from \`${e.arg.text}\` is given no deleter`);
+        break;
+      }
+      case "reset": {
+        // the smart pointer `obj` names: a local declared earlier in this flow, or a field
+        const k = keyOf(e.obj, fl, fields);
+        const decl = k.startsWith("this.") ? fieldUptr(ci, fl.className, k.slice(5)) : fl.uptrs.find((u) => u.name === k);
+        const s = slotOf(e.arg);
+        if (!decl || !s.src) break;
+        // shared_ptr::reset(p) takes no deleter from the old value; unique_ptr::reset(p) keeps its deleter type
+        const up: UniquePtrDecl = decl.smart === "shared"
+          ? { ...decl, initCall: undefined, initDeleter: e.deleter?.name, initDeleterOther: e.deleter && !e.deleter.name ? e.deleter : undefined }
+          : { ...decl, initDeleterOther: undefined };
+        checkUniquePtr({ ...up, name: "", range: e.range }, s.src, s.srcRange, om, ci, out, e.arg.range,
+          `\`${k.replace(/^this\./, "")}.reset(${e.arg.text})\` gives the \`std::shared_ptr<${decl.pointee}>\` no deleter`);
         break;
       }
       case "use": {
@@ -782,7 +833,7 @@ function checkFlow(fl: CFlow, om: OwnershipModel, ci: CIndex, model: Model, out:
       }
     }
   }
-  for (const up of fl.uptrs) checkUniquePtr(up, ctorFor(om, ci, up.initCall), up.range, om, ci, out);
+  for (const up of fl.uptrs) if (!up.byEvent) checkUniquePtr(up, ctorFor(om, ci, up.initCall), up.range, om, ci, out, up.initArgRange);
 }
 
 function foreignFree(at: Range, how: string, src: CtorInfo, srcRange: Range | undefined, arg: CArg, om: OwnershipModel, out: Finding[], callRange?: Range): void {
@@ -811,6 +862,31 @@ function releasedFields(ci: CIndex, om: OwnershipModel, cls: string, fl: CFlow, 
   return m;
 }
 
+/**
+ * Where a user-written copy constructor or copy assignment leaves this object holding the
+ * source's handle: the last store into `field` copies `param.field` (`acc_(o.acc_)`,
+ * `acc_ = o.acc_;`) and the handle is not afterwards passed to a function (which may take a new
+ * reference to it, as a retain/add-ref function of a reference-counted handle does). A store of a
+ * new handle (a constructor or clone call) is not a copy of the pointer.
+ */
+function copiesHandle(fl: CFlow, field: string, fields: Set<string>, om: OwnershipModel, ci: CIndex): CArg | undefined {
+  const param = (fl as CFlow & { param?: string }).param ?? fl.params[0];
+  if (!param) return undefined;
+  const self = `this.${field}`;
+  const isHandle = (a: CArg | undefined) => !!a?.ref && (keyOf(a.ref, fl, fields) === self || (a.ref.of === param && a.ref.name === field));
+  let copied: CArg | undefined;
+  for (const e of fl.events) {
+    if (e.k === "assign" && keyOf(e.lhs, fl, fields) === self) {
+      copied = e.rhs?.ref && !e.rhs.viaGet && e.rhs.ref.of === param && e.rhs.ref.name === field ? { ...e.rhs, range: e.range } : undefined;
+    } else if (e.k === "swap" && [e.a, e.b].some((r) => keyOf(r, fl, fields) === self)) {
+      copied = undefined;
+    } else if (copied && e.k === "call" && !FREE_FNS.has(e.callee) && !releasersAt(om, ci, e.callee).length && e.args.some(isHandle)) {
+      copied = undefined;
+    }
+  }
+  return copied;
+}
+
 const NONCOPYABLE_TYPES = /\b(unique_ptr|mutex|thread|atomic|condition_variable|ofstream|ifstream|fstream|promise|future)\b/;
 
 function checkClasses(model: Model, om: OwnershipModel, ci: CIndex, out: Finding[]): void {
@@ -826,8 +902,8 @@ function checkClasses(model: Model, om: OwnershipModel, ci: CIndex, out: Finding
     for (const f of decls.flatMap((d) => d.fields)) {
       if (!f.uptr) continue;
       const s = srcs.get(f.name);
-      const up = s?.deleterArg ? { ...f.uptr, initDeleter: s.deleterArg } : f.uptr;
-      checkUniquePtr(up, s?.src, s?.range, om, ci, out);
+      const up = s?.deleterArg ? { ...f.uptr, initDeleter: s.deleterArg } : s?.deleterOther ? { ...f.uptr, initDeleterOther: s.deleterOther } : f.uptr;
+      checkUniquePtr(up, s?.src, s?.range, om, ci, out, s?.argRange ?? f.uptr.initArgRange);
     }
 
     const handleFields = decls.flatMap((d) => d.fields).filter((f) => !f.uptr && srcs.has(f.name));
@@ -884,15 +960,38 @@ function checkClasses(model: Model, om: OwnershipModel, ci: CIndex, out: Finding
         if (!bd) return false; // unknown base (may be a non-copyable mixin): say nothing
         return !bd.flatMap((d) => d.members).some((m) => (m.kind === "copyCtor" || m.kind === "copyAssign") && m.state === "deleted");
       });
-      const memberBlocks = decls.flatMap((d) => d.fields).some((x) => x.uptr || NONCOPYABLE_TYPES.test(x.typeText));
-      const cc = copyable("copyCtor"), ca = copyable("copyAssign");
-      if ((cc || ca) && basesKnownCopyable && !memberBlocks) {
-        const which = [cc && `copy constructor (${cc})`, ca && `copy assignment (${ca})`].filter(Boolean).join(" and ");
+      const memberBlocks = decls.flatMap((d) => d.fields).some((x) => (x.uptr && x.uptr.smart !== "shared") || NONCOPYABLE_TYPES.test(x.typeText));
+      // implicit and defaulted copies are copyable only when every base and member is
+      const implicitOk = basesKnownCopyable && !memberBlocks;
+      const cc = implicitOk ? copyable("copyCtor") : null, ca = implicitOk ? copyable("copyAssign") : null;
+      // a user-written copy member that copies the pointer shares the handle just the same
+      const userCopy = (k: "copyCtor" | "copyAssign") => {
+        for (const fl of flows) {
+          if (fl.member !== k || fl.state !== "user") continue;
+          const at = copiesHandle(fl, f.name, fields, om, ci);
+          if (at) return { fl, at };
+        }
+        return undefined;
+      };
+      const ucc = userCopy("copyCtor"), uca = userCopy("copyAssign");
+      if (cc || ca || ucc || uca) {
+        const which = [
+          cc && `copy constructor (${cc})`, ucc && `user-written copy constructor that copies the pointer (\`${f.name}\` from \`${ucc.at.text}\`)`,
+          ca && `copy assignment (${ca})`, uca && `user-written copy assignment that copies the pointer (\`${f.name}\` from \`${uca.at.text}\`)`,
+        ].filter(Boolean).join(" and ");
         const dtorMember = members.find((m) => m.kind === "dtor" && m.range.file === cls.file) ?? null;
+        const copies: Related[] = [ucc, uca].filter((u): u is NonNullable<typeof ucc> => !!u).map((u) => ({ range: u.at.range, message: `the ${u.fl.member === "copyCtor" ? "copy constructor" : "copy assignment"} copies the handle here` }));
+        // what a fix replaces with a deleted declaration: an in-class definition, or the in-class
+        // declaration of an out-of-class definition (which is then removed)
+        const replace = [ucc, uca].filter((u): u is NonNullable<typeof ucc> => !!u).map((u) => {
+          const inClass = u.fl.range.file === cls.file && u.fl.range.line > cls.bodyRange.line && u.fl.range.endLine <= cls.bodyRange.endLine;
+          const decl = inClass ? undefined : members.find((m) => m.kind === u.fl.member && m.state === "declared" && m.range.file === cls.file);
+          return { kind: u.fl.member, def: u.fl.range, decl: decl?.range ?? null, inClass };
+        });
         out.push(finding(COPYABLE_WRAPPER, cls.nameRange,
           `\`${name}\` releases \`${f.name}\` in its destructor (\`${rel.by}\`) but has a ${which}: a copy shares the handle and both destructors release it (double free)`,
-          [{ range: rel.range, message: `released here by \`${rel.by}\`` }, { range: s.range, message: `filled here by \`${s.src.fn.symbol}\`` }],
-          { data: { cls: name, dtor: dtorMember?.range ?? null, classBody: cls.bodyRange, copyCtor: !!cc, copyAssign: !!ca } }));
+          [{ range: rel.range, message: `released here by \`${rel.by}\`` }, { range: s.range, message: `filled here by \`${s.src.fn.symbol}\`` }, ...copies],
+          { data: { cls: name, dtor: dtorMember?.range ?? null, classBody: cls.bodyRange, copyCtor: !!cc, copyAssign: !!ca, replace } }));
       }
       for (const mv of flows.filter((x) => (x.member === "moveCtor" || x.member === "moveAssign") && x.state === "user")) {
         const param = (mv as CFlow & { param?: string }).param ?? mv.params[0];

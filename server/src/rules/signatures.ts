@@ -3,9 +3,11 @@
 // item, const-ness per pointer level), the return type, callbacks and variadics, on every target.
 
 import type { Model } from "../model/boundary.js";
-import type { AbiType, FnDecl } from "../model/types.js";
+import type { AbiType, Field, FnDecl, TypeDecl } from "../model/types.js";
 import { compareTypes, describeC, describeRust, type GroupedDiff } from "../model/compare.js";
+import { NULL_DOC } from "../model/pairing.js";
 import { finding, targetPhrase, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
+import { findPairs } from "./layout.js";
 
 export const ARITY: RuleMeta = {
   id: "arity-mismatch",
@@ -90,6 +92,59 @@ export function compareSignatures(model: Model, rust: FnDecl, c: FnDecl): Findin
   return out;
 }
 
+/** The function type behind a C or Rust type (a pointer to function, or a Rust fn pointer). */
+function fnOf(model: Model, t: AbiType, side: "rust" | "c"): (AbiType & { k: "fn" }) | undefined {
+  const r = model.resolve(t, side);
+  if (r.k === "fn") return r;
+  if (r.k === "ptr") {
+    const to = model.resolve(r.to, side);
+    if (to.k === "fn") return to;
+  }
+  return undefined;
+}
+
+const ALL_ENTRIES = /\b(any|every|all|each)\b[^.;]*\b(entry|entries|callbacks?|hooks?|function pointers?|members?|fields?|handlers?)\b/i;
+
+/** Why C may leave a function-pointer field NULL: `_Nullable` on it, its own comment, or a sentence
+ * of the struct's comment that names it (or speaks of every entry). */
+function nullFieldEvidence(cd: TypeDecl, f: Field): string | undefined {
+  if (f.nullableQual) return `\`_Nullable\` on \`${f.name}\``;
+  const sentences = (doc: string) => doc.replace(/\s*\n\s*/g, " ").split(/(?<=[.;])\s+|\n/).map((x) => x.trim()).filter((x) => NULL_DOC.test(x));
+  const own = f.doc ? sentences(f.doc)[0] : undefined;
+  if (own) return `the comment of \`${f.name}\`: "${own}"`;
+  const esc = f.name.replace(/[^\w]/g, "");
+  const named = cd.doc && esc ? sentences(cd.doc).find((x) => new RegExp(`\\b${esc}\\b`).test(x) || ALL_ENTRIES.test(x)) : undefined;
+  return named ? `the comment of \`${cd.name}\`: "${named}"` : undefined;
+}
+
+/**
+ * A `#[repr(C)]` mirror of a C struct whose function-pointer field is a plain Rust `extern "C" fn`
+ * while the C side says the entry may be NULL. A Rust fn pointer is never null (Rust Reference,
+ * "Function pointer types"; the null-pointer optimisation makes `Option<extern "C" fn(..)>` the
+ * nullable one with the same size: std::option, "Representation"), so a NULL entry read as the
+ * plain type is undefined behaviour even before it is called.
+ */
+function nullableFnFields(model: Model, out: Finding[]): void {
+  for (const p of findPairs(model)) {
+    const rd = p.rust, cd = p.c;
+    if (rd.kind !== "struct" || cd.kind !== "struct" || !rd.repr.c) continue;
+    const n = Math.min(rd.fields.length, cd.fields.length);
+    for (let i = 0; i < n; i++) {
+      const rf = rd.fields[i]!, cf = cd.fields[i]!;
+      const rfn = fnOf(model, rf.type, "rust");
+      if (!rfn || rfn.nullable || !fnOf(model, cf.type, "c")) continue;
+      const why = nullFieldEvidence(cd, cf);
+      if (!why) continue;
+      const f = finding(CALLBACK, rf.range,
+        `\`${rd.name}.${rf.name}\` is a non-nullable \`extern "C" fn\`, but C may leave \`${cd.name}.${cf.name}\` NULL (${why}); a NULL read as a Rust fn pointer is undefined behaviour: declare it \`Option<unsafe extern "C" fn(..)>\` and check it before calling`,
+        [{ range: cf.range, message: `C field \`${cf.name}\` of \`${cd.name}\` (matched because ${p.via})` }],
+        { data: { rustType: rd.id, cType: cd.id, field: i, diff: "nullable" } });
+      f.severity = "warning";
+      out.push(f);
+    }
+  }
+}
+
 export const signaturesFamily: RuleFamily = {
   name: "signatures",
   rules: [ARITY, PARAM_TYPE, PARAM_SIGN, CONSTNESS, RETURN_TYPE, CALLBACK],
@@ -105,6 +160,7 @@ export const signaturesFamily: RuleFamily = {
         for (const c of cands) out.push(...compareSignatures(model, r, c));
       }
     }
+    nullableFnFields(model, out);
     return out;
   },
 };

@@ -18,7 +18,7 @@
 import type { Node } from "../../parse/parser.js";
 import type { FileFacts, FnDecl, Range } from "../../model/types.js";
 import type {
-  CArg, CClass, CEvent, CField, CFlow, COwnFacts, CRef, MemberKind, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl,
+  CArg, CClass, CEvent, CField, CFlow, COwnFacts, CRef, DeleterArg, MemberKind, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl,
 } from "../../model/ownership.js";
 import { indexSubtree, rangeOf, walk, walkFile, walkTypes } from "../common.js";
 import { bodyWalkTypes, cFileExtractors, rustExtractors } from "../hooks.js";
@@ -490,13 +490,20 @@ function typeHead(t: Node | null | undefined): string {
   return t.text.replace(/^(struct|class|const)\s+/, "");
 }
 
-/** std::unique_ptr<T, D> from a type node; undefined for other types. */
+/** std::unique_ptr<T, D> or std::shared_ptr<T> from a type node (or the template_function of an
+ * expression `std::shared_ptr<T>(p)`); undefined for other types. */
 function uniquePtrOf(t: Node | null | undefined, file: string, name: string, range: Range): UniquePtrDecl | undefined {
   let tt = t;
   if (tt?.type === "qualified_identifier") tt = tt.childForFieldName("name");
-  if (tt?.type !== "template_type" || tt.childForFieldName("name")?.text !== "unique_ptr") return undefined;
+  if (tt?.type !== "template_type" && tt?.type !== "template_function") return undefined;
+  const head = tt.childForFieldName("name")?.text;
+  if (head !== "unique_ptr" && head !== "shared_ptr") return undefined;
   const args = tt.childForFieldName("arguments")?.namedChildren ?? [];
   const pointee = typeHead(args[0]?.childForFieldName("type") ?? args[0]);
+  // std::shared_ptr's deleter is never part of its type: it is the constructor's (or reset's)
+  // second argument, and without one the pointer is destroyed with `delete`
+  // (C++ [util.smartptr.shared.const], [util.smartptr.shared.dest]).
+  if (head === "shared_ptr") return { name, smart: "shared", pointee, deleter: { k: "default" }, range };
   let deleter: UniquePtrDecl["deleter"] = { k: "default" };
   const d = args[1];
   if (d) {
@@ -512,6 +519,37 @@ function uniquePtrOf(t: Node | null | undefined, file: string, name: string, ran
     }
   }
   return { name, pointee, deleter, range };
+}
+
+/** A deleter argument: a function by name (`&sonar_fir_free`, `sonar_fir_free`), or anything else
+ * (a lambda, a functor object) with the calls and `delete`s of its body. */
+function deleterArgOf(n: Node, file: string): DeleterArg {
+  const a = argOf(n, file);
+  if (a.ref && !a.ref.of && !a.ref.this) return { name: a.ref.name, text: n.text, calls: [], deletes: false };
+  const calls: string[] = [];
+  let deletes = false;
+  if (n.type === "lambda_expression") {
+    const body = n.childForFieldName("body");
+    for (const c of body?.descendantsOfType(["call_expression", "delete_expression"]) ?? []) {
+      if (c.type === "delete_expression") deletes = true;
+      else calls.push(calleeName(c.childForFieldName("function")));
+    }
+  }
+  return { text: n.text, calls, deletes };
+}
+
+/** The constructor arguments of a smart pointer: the pointer it takes over and the deleter. */
+function fillInit(up: UniquePtrDecl, first: Node | null | undefined, second: Node | null | undefined, file: string): void {
+  if (first) {
+    const a = argOf(first, file);
+    if (a.call) up.initCall = a.call;
+    up.initArgRange = rangeOf(file, first);
+  }
+  if (second) {
+    const d = deleterArgOf(second, file);
+    if (d.name) up.initDeleter = d.name;
+    else up.initDeleterOther = d;
+  }
 }
 
 function stripCasts(n: Node | null | undefined): { node: Node | null | undefined; castTo?: string } {
@@ -697,10 +735,12 @@ function extractFlow(def: Node, file: string, className: string | undefined, out
     const lhs: CRef = { name: fname, this: true };
     if (a0) visitExpr(a0, file, flow);
     ev.push({ k: "assign", lhs, rhs: a0 ? argOf(a0, file) : null, isNull: !a0 || isNullNode(a0), range: rangeOf(file, fi) });
-    const a1 = argsN?.namedChildren[1];
+    const a1 = argsN?.namedChildren.filter((c) => !c.type.endsWith("comment"))[1];
     if (a1) {
-      // unique_ptr member initialised with (ptr, deleter): remember the deleter
-      (ev[ev.length - 1] as { deleterArg?: string }).deleterArg = argOf(a1, file).ref?.name;
+      // smart pointer member initialised with (ptr, deleter): remember the deleter
+      const d = deleterArgOf(a1, file);
+      if (d.name) (ev[ev.length - 1] as { deleterArg?: string }).deleterArg = d.name;
+      else (ev[ev.length - 1] as { deleterOther?: DeleterArg }).deleterOther = d;
     }
   }
   if (body) {
@@ -734,8 +774,16 @@ function visitExpr(root: Node, file: string, flow: CFlow & { bodyId?: number }):
             const nm = declName(d.childForFieldName("declarator")).name;
             const up = nm ? uniquePtrOf(t, file, nm, rangeOf(file, n)) : undefined;
             if (up && nm) {
-              const p0 = d.childForFieldName("parameters")?.namedChildren[0];
+              const ps = d.childForFieldName("parameters")?.namedChildren ?? [];
+              const p0 = ps[0];
               if (p0?.childForFieldName("declarator")?.type === "abstract_function_declarator") up.initCall = typeHead(p0.childForFieldName("type"));
+              const t0 = p0?.childForFieldName("type");
+              if (p0 && ps.length === 1 && !p0.childForFieldName("declarator") && t0?.type === "type_identifier" && flow.locals.includes(t0.text)) {
+                // `std::shared_ptr<T> sp(raw);` with `raw` a local: the "type" is the local it takes over
+                up.byEvent = true;
+                up.initArgRange = rangeOf(file, t0);
+                ev.push({ k: "smart", up, arg: { text: t0.text, ref: { name: t0.text }, range: rangeOf(file, t0) }, range: up.range });
+              }
               flow.uptrs.push(up);
               flow.locals.push(nm);
             }
@@ -746,21 +794,22 @@ function visitExpr(root: Node, file: string, flow: CFlow & { bodyId?: number }):
           flow.locals.push(dn.name);
           const val = d.type === "init_declarator" ? d.childForFieldName("value") : null;
           const up = uniquePtrOf(t, file, dn.name, rangeOf(file, n));
+          const list = val?.type === "argument_list" || val?.type === "initializer_list";
+          const first = list ? val!.namedChildren[0] : val;
           if (up) {
-            const first = val?.type === "argument_list" || val?.type === "initializer_list" ? val.namedChildren[0] : val;
-            const second = val?.type === "argument_list" || val?.type === "initializer_list" ? val.namedChildren[1] : undefined;
-            if (first) {
-              const a = argOf(first, file);
-              if (a.call) up.initCall = a.call;
-            }
-            if (second) up.initDeleter = argOf(second, file).ref?.name;
+            fillInit(up, first, list ? val!.namedChildren[1] : undefined, file);
             flow.uptrs.push(up);
           }
           if (val) {
-            const v0 = val.type === "argument_list" || val.type === "initializer_list" ? val.namedChildren[0] : val;
+            const v0 = first;
             if (v0) {
               visitExpr(v0, file, flow);
               ev.push({ k: "assign", lhs: { name: dn.name }, rhs: argOf(v0, file), isNull: isNullNode(v0), range: rangeOf(file, d), decl: true, declType: typeHead(t) });
+              // the smart pointer takes over what its argument holds at this point of the flow
+              if (up && !isNullNode(v0)) {
+                up.byEvent = true;
+                ev.push({ k: "smart", up, arg: argOf(v0, file), range: up.range });
+              }
             }
           }
         }
@@ -798,6 +847,17 @@ function visitExpr(root: Node, file: string, flow: CFlow & { bodyId?: number }):
         for (const a of argsN) visitExpr(a, file, flow);
         if (f?.type === "field_expression") visitExpr(f, file, flow);
         const callee = calleeName(f);
+        // `std::shared_ptr<T>(p)` / `std::unique_ptr<T>(p, d)` built in an expression
+        const upx = f?.type === "qualified_identifier" || f?.type === "template_function" ? uniquePtrOf(f, file, "", rangeOf(file, n)) : undefined;
+        if (upx && argsN[0] && !isNullNode(argsN[0])) {
+          fillInit(upx, argsN[0], argsN[1], file);
+          ev.push({ k: "smart", up: upx, arg: argOf(argsN[0], file), range: rangeOf(file, n) });
+        }
+        // `sp.reset(p)` / `sp.reset(p, d)`: whether `sp` is a smart pointer is the rule's question
+        if (f?.type === "field_expression" && f.childForFieldName("field")?.text === "reset" && argsN[0] && !isNullNode(argsN[0])) {
+          const obj = refOf(f.childForFieldName("argument"));
+          if (obj) ev.push({ k: "reset", obj, arg: argOf(argsN[0], file), deleter: argsN[1] ? deleterArgOf(argsN[1], file) : undefined, range: rangeOf(file, n) });
+        }
         if (callee === "swap" && argsN.length === 2) {
           const a = refOf(stripCasts(argsN[0]).node);
           const b = refOf(stripCasts(argsN[1]).node);
@@ -869,8 +929,7 @@ function extractClass(spec: Node, file: string, flows: CFlow[]): CClass | undefi
       if (up) {
         const first = dv?.type === "initializer_list" || dv?.type === "argument_list" ? dv.namedChildren[0] : dv;
         const second = dv?.type === "initializer_list" || dv?.type === "argument_list" ? dv.namedChildren[1] : undefined;
-        if (first) { const a = argOf(first, file); if (a.call) up.initCall = a.call; }
-        if (second) up.initDeleter = argOf(second, file).ref?.name;
+        fillInit(up, first, second, file);
         f.uptr = up;
       } else if (dv) {
         const v0 = dv.type === "initializer_list" ? dv.namedChildren[0] : dv;
