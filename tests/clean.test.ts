@@ -137,3 +137,31 @@ pub unsafe extern "C" fn lfe_run(env: *const f32, n: usize, out: *mut f32, ${cap
     expect(slip.findings.find((x) => x.rule === "slice-length-mismatch")!.message).toContain("`n` is the length of `env`");
   });
 });
+
+describe("messages say what the slip is", () => {
+  const iq = (len: string) => ({
+    "iq.h": `#include <stddef.h>
+#include <stdint.h>
+/* ferrule-buffers: iq[2*n] */
+float xc_iq_power(const int16_t *iq, size_t n);
+`,
+    "iq.rs": `#[no_mangle]
+pub unsafe extern "C" fn xc_iq_power(iq: *const i16, n: usize) -> f32 {
+    let s = std::slice::from_raw_parts(iq, ${len});
+    s.iter().map(|&v| f32::from(v) * f32::from(v)).sum()
+}
+`,
+  });
+
+  it("a slice of `n` int16 items where the contract says `2*n` is a wrong length, not bytes taken for items (2 is also the item size)", async () => {
+    const { findings } = await analyze(iq("n"));
+    expect(findings.map((f) => `${f.rule} ${f.range.file.split("/").pop()}:${f.range.line + 1}`)).toEqual(["slice-length-mismatch iq.rs:3"]);
+    expect(findings[0]!.message).toContain("slice over `iq` has length `n`, but the contract says");
+    // the real unit slip keeps its message: an item count divided by the item size
+    const unit = await analyze(iq("2 * n / std::mem::size_of::<i16>()"));
+    const buf = unit.findings.filter((f) => f.rule !== "panic-across-c-abi"); // (`2 * n` may overflow there)
+    expect(buf.map((f) => f.rule)).toEqual(["length-unit-mismatch"]);
+    expect(buf[0]!.message).toContain("divides an item count by the item size as if it were bytes");
+    expect((await analyze(iq("2 * n"))).findings).toEqual([]);
+  });
+});

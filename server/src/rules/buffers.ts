@@ -175,7 +175,9 @@ function checkRust(model: Model, k: FnContract, out: Finding[]): void {
         out.push(finding(UNIT, s.range, `slice length \`${s.lenText}\` counts bytes, but \`${s.mut ? "from_raw_parts_mut" : "from_raw_parts"}\` takes ${typeText(s.elem ?? declared!)} items: ${contract}; use \`${idxTermText(P.len, rust)} / size_of::<${s.elemText ?? param.text.replace(/^\*(const|mut)\s*/, "")}>()\``, related([{ range: P.at, message: `contract: ${P.evidence}` }]), { data: { pairing: P.source } }));
         continue;
       }
-      if (P.unit === "items" && Math.abs(ratio * E - 1) < 1e-9 && E > 1) {
+      // (only when the slice length divides: `n` for a contract of `2*n` i16 items is a wrong
+      // length, not a unit slip, although 2 is also the item size)
+      if (P.unit === "items" && Math.abs(ratio * E - 1) < 1e-9 && E > 1 && (t.divSizeofs.length > 0 || t.coef < 1)) {
         out.push(finding(UNIT, s.range, `slice length \`${s.lenText}\` divides an item count by the item size as if it were bytes: ${contract}`, related([{ range: P.at, message: `contract: ${P.evidence}` }])));
         continue;
       }

@@ -547,10 +547,13 @@ function checkAsserts(model: Model, out: Finding[]): void {
       if (!fails.length) continue;
       const failing = fails.map((x) => x.triple);
       const groups = group(fails);
-      const byVal = groups.length === 1 ? String(groups[0]!.vs[0]) : groups.map((g) => `${g.vs[0]} on ${g.triples.map(shortTriple).join(", ")}`).join(", ");
-      const holdText = holds.length ? `; it holds on ${holds.map(shortTriple).join(", ")}` : "";
+      // "does not hold on i686: … is 4 there (it holds on x86_64, …)"; no target list when it fails everywhere
+      const some = failing.length !== model.targets.length;
+      const where = some ? ` on ${failing.map(shortTriple).join(", ")}` : "";
+      const byVal = groups.length === 1 ? `${groups[0]!.vs[0]}${some ? " there" : ""}` : groups.map((g) => `${g.vs[0]} on ${g.triples.map(shortTriple).join(", ")}`).join(", ");
+      const holdText = holds.length ? ` (it holds on ${holds.map(shortTriple).join(", ")})` : "";
       const related = subj.decl ? [{ range: subj.decl.nameRange, message: `declaration of \`${subj.decl.name}\`` }] : [];
-      out.push(finding(ASSERT_FAILS, a.range, `\`${what} ${a.op} ${a.value}\` does not hold: ${what} is ${byVal}${holdText}${targetPhrase(failing, model.targets)}`, related, {
+      out.push(finding(ASSERT_FAILS, a.range, `\`${what} ${a.op} ${a.value}\` does not hold${where}: ${what} is ${byVal}${holdText}`, related, {
         targets: failing.length === model.targets.length ? undefined : failing,
         data: { kind: a.kind, type: a.typeName },
       }));
