@@ -6,6 +6,11 @@
 // read/write in heap memory; the matching good fixture must run clean.
 //   - length-unit-mismatch/bad: `seis_detrend(…, n * sizeof(float))` → the kernel walks 4 × n
 //     floats of 64-float vectors (Valgrind: "Invalid write of size 4").
+//   - length-unit-mismatch/bad, the reverse: `seis_fill_taper(taper, ntaps)` where the kernel
+//     takes bytes (`ferrule-buffers: taper[nbytes bytes]`) → it fills only ntaps / 4 floats of a
+//     `new float[ntaps]`, and the caller integrates the rest unwritten (Valgrind, with
+//     --track-origins: "Conditional jump or move depends on uninitialised value(s)" … "created by
+//     a heap allocation"). No invalid access: the slip loses data rather than overrunning.
 //   - item-size-mismatch/bad: `corr_power(iq, 2 * n)` with int16 I/Q → the kernel reads 2 × n
 //     floats (8 × n bytes) from a 4 × n-byte buffer (Valgrind: "Invalid read of size 4").
 import { beforeAll, describe, expect, it } from "vitest";
@@ -28,6 +33,15 @@ int main() {
 `;
 // The bad trace block also passes sizeof(window) for stack arrays; the driver only needs the
 // first (heap) call to show the corruption, so the stack arrays are left as they are.
+
+const TAPER_DRIVER = `#include <cstddef>
+float taper_sum(size_t ntaps);
+int main() {
+    volatile float s = taper_sum(64);
+    (void)s;
+    return 0;
+}
+`;
 
 const POWER_DRIVER_BAD = `#include <cstdint>
 #include <cstddef>
@@ -60,8 +74,8 @@ function build(name: string, fixtureDir: string, driver: string, cSources: strin
   return { dir, exe };
 }
 
-function memcheck(b: Build): { code: number | null; log: string } {
-  const r = spawnSync("valgrind", ["--tool=memcheck", "--error-exitcode=97", "-q", b.exe], { encoding: "utf8", timeout: 60_000 });
+function memcheck(b: Build, extra: string[] = []): { code: number | null; log: string } {
+  const r = spawnSync("valgrind", ["--tool=memcheck", "--error-exitcode=97", "-q", ...extra, b.exe], { encoding: "utf8", timeout: 60_000 });
   return { code: r.status, log: r.stderr + (r.signal ? `\nsignal ${r.signal}` : "") };
 }
 
@@ -70,6 +84,8 @@ describe.skipIf(!TOOLS)("bad buffer fixtures corrupt memory under Valgrind memch
   beforeAll(() => {
     builds.unitBad = build("unit-bad", path.join(FIX, "length-unit-mismatch", "bad"), DETREND_DRIVER, [], ["trace_block.cc"]);
     builds.unitGood = build("unit-good", path.join(FIX, "length-unit-mismatch", "good"), DETREND_DRIVER, [], ["trace_block.cc"]);
+    builds.taperBad = build("taper-bad", path.join(FIX, "length-unit-mismatch", "bad"), TAPER_DRIVER, [], ["gain_block.cc"]);
+    builds.taperGood = build("taper-good", path.join(FIX, "length-unit-mismatch", "good"), TAPER_DRIVER, [], ["gain_block.cc"]);
     builds.itemBad = build("item-bad", path.join(FIX, "item-size-mismatch", "bad"), POWER_DRIVER_BAD, ["frontend.c"], []);
   }, 120_000);
 
@@ -78,6 +94,17 @@ describe.skipIf(!TOOLS)("bad buffer fixtures corrupt memory under Valgrind memch
     expect(r.log).toMatch(/Invalid write of size 4/);
     expect(r.log).toMatch(/seis_detrend/);
     expect(r.code).not.toBe(0);
+  }, 60_000);
+
+  it("length-unit-mismatch (items passed as bytes): the kernel fills a quarter, Valgrind reports the rest uninitialised", () => {
+    const r = memcheck(builds.taperBad!, ["--track-origins=yes"]);
+    expect(r.log).toMatch(/Conditional jump or move depends on uninitialised value/);
+    expect(r.log).toMatch(/taper_sum/);
+    expect(r.log).toMatch(/created by a heap allocation/);
+    expect(r.code).toBe(97);
+    const g = memcheck(builds.taperGood!, ["--track-origins=yes"]);
+    expect(g.log).not.toMatch(/uninitialised|Invalid (read|write)/);
+    expect(g.code).toBe(0);
   }, 60_000);
 
   it("item-size-mismatch (int16 I/Q read as float): Valgrind reports an invalid heap read", () => {

@@ -182,3 +182,49 @@ describe("documentation", () => {
     expect(got(findings)).toEqual(["item-size-mismatch g.cc:13", "port-item-size-mismatch g.cc:11", "vector-port-count g.cc:13"]);
   });
 });
+
+describe("length-unit-mismatch: an item count where the kernel takes bytes", () => {
+  it("reports each call at its line: an error on an explicit byte contract, a warning on naming alone, with the fix", async () => {
+    const { findings } = await run(path.join(ROOT, "length-unit-mismatch", "bad"));
+    const unit = findings.filter((f) => f.rule === "length-unit-mismatch" && f.range.file.endsWith("gain_block.cc"));
+    const by = new Map(unit.map((f) => [f.range.line + 1, f]));
+    expect([...by.keys()].sort((a, b) => a - b)).toEqual([11, 12, 13, 23, 31]);
+    const sev = (l: number) => by.get(l)!.severity;
+    const rel = (l: number) => by.get(l)!.related.map((r) => r.message).join(" | ");
+    // Rust body `from_raw_parts_mut(raw, nbytes / size_of::<f32>())`
+    expect(sev(11)).toBe("error");
+    expect(by.get(11)!.message).toContain("`n * nchan_` counts float items (`n`, `nchan_` read as item counts), but `nbytes` of `seis_gain_scaled` is in bytes");
+    expect(by.get(11)!.message).toContain("pass `n * nchan_ * sizeof(float)`");
+    expect(rel(11)).toContain("from_raw_parts_mut(raw, nbytes / size_of::<f32>())");
+    // clang `__sized_by(nbytes)`
+    expect(sev(12)).toBe("error");
+    expect(rel(12)).toContain("__sized_by(nbytes) raw");
+    expect(by.get(12)!.message).toContain("pass `n * sizeof(float)`");
+    // GCC access attribute on a `const void *`: the item type is the argument's (float)
+    expect(sev(13)).toBe("error");
+    expect(rel(13)).toContain("access(read_only, 1, 2)");
+    expect(by.get(13)!.message).toContain("pass `2 * n * nchan_ * sizeof(float)`");
+    // the ferrule annotation
+    expect(sev(23)).toBe("error");
+    expect(rel(23)).toContain("ferrule-buffers: taper[nbytes bytes]");
+    // naming only (`nbytes`), with `.size()` of a std::vector<float> as the count
+    expect(sev(31)).toBe("warning");
+    expect(by.get(31)!.message).toContain("pass `raw.size() * sizeof(float)`");
+    expect(rel(31)).toContain("naming: `nbytes` reads as a byte count");
+  });
+
+  it("the radio-correlator probe without `* sizeof(float)` at its two byte-count calls is reported at both", async () => {
+    const dir = path.join(__dirname, "..", "..", "test-fixtures", "clean", "radio-correlator");
+    const files = readDir(dir);
+    const drop = (file: string, from: string, to: string) => {
+      expect(files[file]).toContain(from);
+      files[file] = files[file]!.replace(from, to);
+    };
+    drop("blocks/dump_block.cc", "xc_checksum(power, n * nchan_ * sizeof(float))", "xc_checksum(power, n * nchan_)");
+    drop("blocks/power_block.cc", "xc_scale_raw(power, n * nchan_ * sizeof(float), gain_)", "xc_scale_raw(power, n * nchan_, gain_)");
+    const { findings } = await analyze(files);
+    const lines = (f: string) => files[f]!.split("\n").findIndex((l) => l.includes("n * nchan_)") || l.includes("n * nchan_, gain_)")) + 1;
+    expect(got(findings)).toEqual([`length-unit-mismatch blocks/dump_block.cc:${lines("blocks/dump_block.cc")}`, `length-unit-mismatch blocks/power_block.cc:${lines("blocks/power_block.cc")}`]);
+    expect(findings.filter((f) => f.rule === "length-unit-mismatch").every((f) => f.severity === "error")).toBe(true);
+  });
+});

@@ -166,7 +166,8 @@ export function isBufferPtr(model: Model, t: AbiType, side: "rust" | "c"): boole
   return false;
 }
 
-function countUnit(name: string): "items" | "bytes" | undefined {
+/** What a count's name reads as by the naming conventions above (one identifier's text). */
+export function countUnit(name: string): "items" | "bytes" | undefined {
   const n = name.toLowerCase();
   if (BYTE_NAME.test(n)) return "bytes";
   if (NOT_COUNT.test(n)) return undefined;

@@ -9,7 +9,7 @@
 import type { Model } from "../model/boundary.js";
 import type { AbiType, CallSite, Expr, FnDecl, Range } from "../model/types.js";
 import type { CBufferFacts, CFnScope, CVar, RustBufferFacts, RustSliceFact } from "../model/buffer-facts.js";
-import { contractOf, idxTermText, isBufferPtr, lenTerm, sizeOfType, sizeofFactor, typeText, type FnContract, type LenTerm, type Pairing } from "../model/pairing.js";
+import { contractOf, countUnit, idxTermText, isBufferPtr, lenTerm, sizeOfType, sizeofFactor, typeText, type FnContract, type LenTerm, type Pairing } from "../model/pairing.js";
 import { finding, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
 
 export const SLICE_LEN: RuleMeta = {
@@ -275,7 +275,9 @@ function rank(p: Pairing): number {
 }
 
 function pairText(P: Pairing, fn: FnDecl): string {
-  return `\`${P.ptrName}\` holds \`${idxTermText(P.len, fn)}\` ${P.unit} (from ${P.evidence})`;
+  // a byte contract read from `nbytes / size_of::<f32>()` items: the buffer holds `nbytes` bytes
+  const len = P.unit === "bytes" && P.len.divSizeofs.length === 1 && !P.len.sizeofs.length ? { ...P.len, divSizeofs: [] } : P.len;
+  return `\`${P.ptrName}\` holds \`${idxTermText(len, fn)}\` ${P.unit} (from ${P.evidence})`;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -393,17 +395,17 @@ function checkCalls(model: Model, out: Finding[]): void {
         const la = cs.args[P.lenParam];
         if (!la) continue;
         const pt = pointee(model, decl.params[pi]?.type, side);
+        if (P.unit === "bytes") {
+          const f = itemsForBytes(model, cs, sc, decl, k, pi, P, pt, side);
+          if (f) out.push(finding(UNIT, la.range, f.message, rel(P), { severity: f.severity, data: { pairing: P.source } }));
+          continue;
+        }
         const T = itemSize(model, pt, side);
         if (!T || T === 1) continue;
         const lt = lenTerm(la.expr);
         const isBytes = (lt && lt.sizeofs.length > lt.divSizeofs.length) || (la.expr.k === "sizeof" && !!la.expr.expr) || (la.expr.k === "bin" && containsSizeofVar(la.expr));
-        if (P.unit === "items" && isBytes) {
+        if (isBytes) {
           out.push(finding(UNIT, la.range, `\`${la.text}\` is a byte count, but \`${decl.params[P.lenParam]!.name}\` counts ${typeText(pt!)} items: ${pairText(P, decl)}; pass the number of items`, rel(P), { data: { pairing: P.source } }));
-        } else if (P.unit === "bytes" && lt && !lt.sizeofs.length && lt.names.length === 1 && !lt.divSizeofs.length) {
-          const nm = lt.names[0]!;
-          if (/^(n|count|nitems|noutput_items|ninput_items|n_items|num_items|nsamples|n_samples)$/.test(nm) && lt.coef === 1) {
-            out.push(finding(UNIT, la.range, `\`${la.text}\` reads as an item count, but \`${decl.params[P.lenParam]!.name}\` is in bytes: ${pairText(P, decl)}; pass \`${la.text} * sizeof(${typeText(pt!)})\``, rel(P)));
-          }
         }
       }
       // --- swapped buffers (by const-ness and names)
@@ -433,6 +435,108 @@ function checkCalls(model: Model, out: Finding[]): void {
       }
     }
   }
+}
+
+/**
+ * An item count passed where the kernel takes bytes (`xc_scale_raw(power, n * nchan_, g)` for
+ * `size_t nbytes`). Reported only on evidence that holds for correct code's opposite:
+ *   - the buffer argument has a known item type wider than one byte (the argument's pointee, else
+ *     the parameter's; a `void *`/`char *`/`uint8_t *` buffer, or one cast from a byte pointer,
+ *     is counted in bytes already);
+ *   - the length argument is a product of integer literals and at least one count that reads as
+ *     items: a name by the naming conventions of model/pairing.ts (`n`, `nchan_`,
+ *     `noutput_items`, `*_len`; not one spelled like the kernel's own byte parameter), or `.size()`
+ *     of a container of items wider than a byte; no `sizeof` anywhere, and no local it names
+ *     initialised from a `sizeof` or a byte-named count.
+ * Error when the byte contract is explicit (access attribute, `__sized_by`, the ferrule
+ * annotation, a Rust body dividing the parameter by `size_of`), warning when only names say it.
+ */
+function itemsForBytes(model: Model, cs: CallSite, sc: CFnScope | undefined, decl: FnDecl, k: FnContract, pi: number, P: Pairing, pt: AbiType | undefined, side: "rust" | "c"): { message: string; severity: Finding["severity"] } | undefined {
+  const ba = cs.args[pi], la = cs.args[P.lenParam!];
+  if (!ba || !la) return undefined;
+  const line = cs.range.line;
+  // a buffer cast from bytes (`(float *)raw_u8`) may well be counted in bytes
+  const nm = identName(ba.expr);
+  const v = ba.expr.k === "ident" && nm ? varOf(sc, nm, line) : undefined;
+  const from = (ba as typeof ba & { castFrom?: AbiType }).castFrom ?? v?.castFrom;
+  const F = itemSize(model, pointee(model, from, "c"), "c");
+  if (F !== undefined && F <= 1) return undefined;
+  const at = pointee(model, ba.type, "c");
+  const A = itemSize(model, at, "c");
+  const elem = A !== undefined ? at! : pt;
+  const E = A ?? itemSize(model, pt, side);
+  if (!elem || !E || E <= 1) return undefined;
+  const own = new Set([decl.params[P.lenParam!]?.name, k.rust?.params[P.lenParam!]?.name].filter((x): x is string => !!x).map(memberStem));
+  const names: string[] = [];
+  const conts: string[] = [];
+  // the container whose `.size()` / `std::size()` a call takes
+  const sizeOf = (e: Expr): CVar | undefined => {
+    if (e.k !== "call") return undefined;
+    const target = e.recv && (e.callee === "size" || e.callee === "length") ? e.recv : !e.recv && /(^|::)size$/.test(e.callee) ? e.args[0] : undefined;
+    const cn = target && identName(target);
+    return cn ? varOf(sc, cn, line) : undefined;
+  };
+  const byteSize = (e: Expr): boolean => {
+    const cv = sizeOf(e);
+    return !!cv?.container && !!cv.elem && (itemSize(model, cv.elem, "c") ?? 0) <= 1;
+  };
+  const leaf = (e: Expr, depth: number): boolean => {
+    if (depth > 12) return false;
+    switch (e.k) {
+      case "num": return Number.isInteger(e.value) && e.value > 0;
+      case "cast": return leaf(e.e, depth + 1);
+      case "bin": return e.op === "*" && leaf(e.l, depth + 1) && leaf(e.r, depth + 1);
+      case "ident":
+      case "field": {
+        const stem = memberStem(e.name);
+        if (countUnit(stem) !== "items" || own.has(stem)) return false;
+        const lv = e.k === "ident" ? varOf(sc, e.name, line) : undefined;
+        if (lv?.init && mayCountBytes(lv.init, byteSize)) return false;
+        names.push(`\`${e.name}\``);
+        return true;
+      }
+      case "call": {
+        const cv = sizeOf(e);
+        const S = cv?.container && cv.elem ? itemSize(model, cv.elem, "c") : undefined;
+        if (!S || S <= 1) return false;
+        const cn = cv!.name;
+        conts.push(`\`${cn}\` holds ${typeText(cv!.elem!)} elements`);
+        return true;
+      }
+    }
+    return false;
+  };
+  if (!leaf(la.expr, 0) || (!names.length && !conts.length)) return undefined;
+  const explicit = EXPLICIT.has(P.source) || (P.source === "rust-body" && P.len.divSizeofs.length > P.len.sizeofs.length);
+  const tn = typeText(elem);
+  const reads = [...(names.length ? [`${names.join(", ")} ${names.length === 1 ? "reads as an item count" : "read as item counts"}`] : []), ...conts].join("; ");
+  return {
+    severity: explicit ? "error" : "warning",
+    message: `\`${la.text}\` counts ${tn} items (${reads}), but \`${decl.params[P.lenParam!]!.name}\` of \`${decl.name}\` is in bytes: ${pairText(P, decl)}; the kernel covers only the first 1/${E} of \`${ba.text}\`; pass \`${la.text} * sizeof(${tn})\``,
+  };
+}
+
+/** A member's name without the `m_` prefix or trailing `_` of a class field (`nchan_` → `nchan`). */
+function memberStem(name: string): string {
+  return name.replace(/_$/, "").replace(/^m_/, "");
+}
+
+/** Whether a local's initialiser may make it a byte count: a `sizeof`, a byte-named name (`nbytes`),
+ * or the size of a container of bytes (`wire.size()` of a `std::vector<uint8_t>`). */
+function mayCountBytes(e: Expr, byteSize: (call: Expr) => boolean, depth = 0): boolean {
+  if (depth > 20) return true;
+  const r = (x: Expr) => mayCountBytes(x, byteSize, depth + 1);
+  switch (e.k) {
+    case "sizeof": return true;
+    case "ident": return countUnit(memberStem(e.name)) === "bytes";
+    case "bin": return r(e.l) || r(e.r);
+    case "un": case "cast": return r(e.e);
+    case "call": return byteSize(e) || e.args.some(r) || (!!e.recv && r(e.recv));
+    case "field": return countUnit(memberStem(e.name)) === "bytes" || r(e.e);
+    case "index": return r(e.e) || r(e.idx);
+    case "other": return true; // not looked into: could hold one
+  }
+  return false;
 }
 
 function containsSizeofVar(e: Expr): boolean {
