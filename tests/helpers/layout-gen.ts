@@ -50,6 +50,8 @@ export interface FieldSpec {
   align: 0 | 1 | 2 | 4 | 8 | 16 | 32;
   alignas: boolean;
   bits: number;
+  /** A bit-field without a name (`unsigned int : 4`, reserved bits). */
+  anon: boolean;
 }
 
 export interface AggSpec {
@@ -76,6 +78,7 @@ const fieldArb = (withBits: boolean): fc.Arbitrary<FieldSpec> =>
     align: fc.oneof({ weight: 12, arbitrary: fc.constant<FieldSpec["align"]>(0) }, { weight: 1, arbitrary: fc.constantFrom<FieldSpec["align"]>(1, 2, 4, 8, 16, 32) }),
     alignas: fc.boolean(),
     bits: fc.integer({ min: 1, max: 31 }),
+    anon: fc.constantFrom(false, false, false, true),
   });
 
 export const aggArb = (withBits = false): fc.Arbitrary<AggSpec> =>
@@ -114,7 +117,8 @@ export function render(specs: AggSpec[], prefix = "S"): Rendered {
     const rFields: string[] = [];
     s.fields.forEach((f, k) => {
       const fname = `f${k}`;
-      fieldNames.push(fname);
+      const anon = f.kind === "bits" && f.anon;
+      if (!anon) fieldNames.push(fname);
       const sc = SCALARS[f.scalar]!;
       let cDecl: string;
       let rType: string | null;
@@ -146,9 +150,9 @@ export function render(specs: AggSpec[], prefix = "S"): Rendered {
         case "bits": {
           const bt = BIT_TYPES[f.scalar % BIT_TYPES.length]!;
           const width = Math.min(f.bits, bt.includes("char") ? 8 : bt.includes("short") ? 16 : bt.includes("long long") ? 40 : 32);
-          cDecl = `${bt} ${fname} : ${width}`;
+          cDecl = anon ? `${bt} : ${width}` : `${bt} ${fname} : ${width}`;
           rType = null;
-          bitFields.add(fname);
+          if (!anon) bitFields.add(fname);
           alignable = false;
           break;
         }

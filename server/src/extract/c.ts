@@ -114,6 +114,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
         if (declarators.length === 0) {
           // anonymous member struct/union, or an unnamed bit-field
           const fld: Field = { name: "", type: base, text: f.text, range: rangeOf(file, f) };
+          bits ??= unnamedBitfieldWidth(f, ctx.consts);
           if (bits !== undefined) fld.bits = bits;
           decl.fields.push(fld);
           continue;
@@ -368,6 +369,19 @@ function cFieldQuirk(f: Node): { name: string; type?: AbiType; align?: number; d
   if (spec.type !== "type_identifier" || (spec.text !== "_Complex" && spec.text !== "__complex__")) return undefined;
   if (decl.text !== "float" && decl.text !== "double") return undefined;
   return { name: realName, type: { k: "complex", of: decl.text } };
+}
+
+/**
+ * `unsigned short : 3;`, `unsigned long long : 8;`: the bundled C grammar parses an unnamed
+ * bit-field whose type is a modifiers-only sized type (no declarator to end the type) as the type
+ * followed by an ERROR node holding the `:` token and the width; the width is read back from that
+ * node's tokens.
+ */
+function unnamedBitfieldWidth(f: Node, consts: Map<string, number>): number | undefined {
+  const err = f.namedChildren.find((c) => c.type === "ERROR");
+  if (!err || err.childCount !== 2 || err.child(0)!.type !== ":") return undefined;
+  const w = err.namedChild(0);
+  return w ? evalConst(w, consts) ?? undefined : undefined;
 }
 
 function aliasDecl(file: string, lang: Lang, name: string, aliasOf: AbiType, whole: Node, nameNode: Node, attrs: string[]): TypeDecl {

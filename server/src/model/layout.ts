@@ -24,12 +24,18 @@
 //  - Flexible array members: C11 §6.7.2.1p18 (the struct is laid out as if the member were
 //    omitted, except that the member's alignment counts). A struct with one nested in another
 //    aggregate or an array is a GCC extension: reported as not portable.
-//  - Bit-fields: the System V psABIs ("Bit-Fields") and AAPCS §8.1.8 define them for named,
-//    non-zero-width bit-fields: each goes in the next bits that do not make it straddle a boundary
-//    of its declared type's size; its declared type's alignment counts toward the aggregate's. GCC's
-//    `packed` places them at the next bit. Everything else — Microsoft bit-fields, unnamed or
-//    zero-width bit-fields, bit-fields under `#pragma pack(N>1)` — is reported as not portable
-//    rather than guessed.
+//  - Bit-fields: the System V psABIs ("Bit-Fields") and AAPCS §8.1.8 define them for non-zero-width
+//    bit-fields: each goes in the next bits that do not make it straddle a boundary of its declared
+//    type's size; its declared type's alignment counts toward the aggregate's — for an unnamed one
+//    only on Arm (AAPCS §8.1.8.1 / AAPCS64 "Bit-fields": "without exception for zero-sized or
+//    anonymous bit-fields"; the System V psABIs: "unnamed bit-fields' types do not affect the
+//    alignment of a structure or union"). GCC's `packed` places them at the next bit. Microsoft
+//    layout (clang's MicrosoftRecordLayoutBuilder, checked by the oracle test): a bit-field shares
+//    the storage unit the previous bit-field opened when its declared type has the same size and
+//    the unit still has room for it; otherwise it opens a new unit, placed and aligned like an
+//    ordinary member of its declared type (named or not). Everything else — zero-width bit-fields,
+//    bit-fields under `#pragma pack(N>1)`, Microsoft bit-fields under `packed` or next to an
+//    explicit alignment — is reported as not portable rather than guessed.
 //  - Enums: see enumLayout.
 
 import type { AbiType, TypeDecl, Field } from "./types.js";
@@ -404,10 +410,12 @@ function unionLayout(d: TypeDecl, ctx: LayoutCtx, depth: number): Layout {
  */
 function bitfieldStructLayout(d: TypeDecl, ctx: LayoutCtx, depth: number): Layout {
   const np = (why: string): Layout => mk(0, 1, { fields: [], notPortable: `\`${d.name}\` ${why}` });
-  if (isMs(ctx.triple)) return np(`has bit-fields; their layout on ${ctx.triple} follows Microsoft rules ferrule does not model`);
   const p = packingOf(d);
   if (p.cap !== undefined) return np("has bit-fields under #pragma pack; GCC and clang place them by rules no ABI document fixes");
-  if (d.fields.some((f) => f.bits !== undefined && (f.bits === 0 || !f.name))) return np("has an unnamed or zero-width bit-field; ferrule does not model how each ABI aligns around it");
+  if (d.fields.some((f) => f.bits === 0)) return np("has a zero-width bit-field; ferrule does not model how each ABI aligns around it");
+  if (isMs(ctx.triple)) return msBitfieldStructLayout(d, ctx, depth, p, np);
+  // AAPCS / AAPCS64: an unnamed bit-field's type counts toward the aggregate's alignment too.
+  const anonAligns = ctx.triple === "armv7-unknown-linux-gnueabihf" || ctx.triple === "aarch64-unknown-linux-gnu";
   let bit = 0;
   let align = 1;
   const fields: FieldLayout[] = [];
@@ -441,7 +449,7 @@ function bitfieldStructLayout(d: TypeDecl, ctx: LayoutCtx, depth: number): Layou
     }
     fields.push({ name: f.name, offset: Math.floor(bit / 8), size: l.size, align: ma, bitOffset: bit, bits: f.bits });
     bit += f.bits;
-    align = Math.max(align, ma);
+    if (f.name || anonAligns) align = Math.max(align, ma);
   }
   if (d.repr.align) align = Math.max(align, d.repr.align);
   const bytes = Math.ceil(bit / 8);
@@ -449,6 +457,59 @@ function bitfieldStructLayout(d: TypeDecl, ctx: LayoutCtx, depth: number): Layou
   if (size > bytes) holes.push([bytes, size - bytes]);
   const out: Layout = mk(size, align, { fields, holes });
   if (notPortable) out.notPortable = notPortable;
+  return out;
+}
+
+/**
+ * Microsoft bit-field layout (see the header comment): a run of bit-fields whose declared types
+ * have one size shares storage units of that size; a bit-field of another size, one that does not
+ * fit the unit's remaining bits, or the first after an ordinary member opens a new unit, laid out
+ * like an ordinary member of its declared type. Unnamed bit-fields are no exception.
+ */
+function msBitfieldStructLayout(d: TypeDecl, ctx: LayoutCtx, depth: number, p: Packing, np: (why: string) => Layout): Layout {
+  if (p.attrPacked) return np(`has bit-fields in a packed struct; ferrule does not model how the Microsoft layout on ${ctx.triple} places them`);
+  let offset = 0;
+  let align = 1;
+  /** The open storage unit: its size in bytes and the bits still free in it (0: none open). */
+  let unitSize = 0;
+  let unitBitsLeft = 0;
+  const fields: FieldLayout[] = [];
+  const holes: [number, number][] = [];
+  let notPortable: string | undefined;
+  for (const f of d.fields) {
+    const l = layoutOf(f.type, ctx, depth);
+    if (l.unknown) return UNKNOWN(`field \`${describeField(f)}\`: ${l.unknown}`);
+    if (l.notPortable) notPortable ??= `field \`${describeField(f)}\`: ${l.notPortable}`;
+    if (fieldAlignAttr(f) !== undefined || l.required || l.alignAttr) return np(`has bit-fields next to an explicitly aligned member; ferrule does not model how the Microsoft layout on ${ctx.triple} places them`);
+    if (f.bits !== undefined && f.bits > l.size * 8) return np(`has a bit-field \`${f.name}\` wider than its type`);
+    if (f.bits !== undefined && unitSize === l.size && unitBitsLeft >= f.bits) {
+      const bitOffset = offset * 8 - unitBitsLeft;
+      fields.push({ name: f.name, offset: Math.floor(bitOffset / 8), size: l.size, align: l.align, bitOffset, bits: f.bits });
+      unitBitsLeft -= f.bits;
+      continue;
+    }
+    const at = roundUp(offset, l.align);
+    if (at > offset) holes.push([offset, at - offset]);
+    const fl: FieldLayout = { name: f.name, offset: at, size: l.size, align: l.align };
+    if (f.bits !== undefined) {
+      fl.bitOffset = at * 8;
+      fl.bits = f.bits;
+    }
+    fields.push(fl);
+    offset = at + l.size;
+    align = Math.max(align, l.align);
+    unitSize = f.bits !== undefined ? l.size : 0;
+    unitBitsLeft = f.bits !== undefined ? l.size * 8 - f.bits : 0;
+  }
+  if (d.repr.align) align = Math.max(align, d.repr.align);
+  const size = roundUp(offset, align);
+  if (size > offset) holes.push([offset, size - offset]);
+  const out: Layout = mk(size, align, { fields, holes: holes.length ? holes : undefined });
+  if (notPortable) out.notPortable = notPortable;
+  if (d.repr.align) {
+    out.required = d.repr.align;
+    out.alignAttr = true;
+  }
   return out;
 }
 

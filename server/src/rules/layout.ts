@@ -16,9 +16,9 @@
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range, SourceAssert, TypeDecl } from "../model/types.js";
-import { declLayout, layoutOf, spellType, type Layout } from "../model/layout.js";
+import { declLayout, layoutOf, spellType, type FieldLayout, type Layout } from "../model/layout.js";
 import { compareOn } from "../model/compare.js";
-import { C_SPELLING, RUST_SPELLING, shortTriple, type ScalarKind, type Triple } from "../model/targets.js";
+import { C_SPELLING, RUST_SPELLING, scalarInfo, shortTriple, type ScalarKind, type Triple } from "../model/targets.js";
 import { finding, targetPhrase, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
 
 export const MIRROR_MISMATCH: RuleMeta = {
@@ -54,7 +54,7 @@ export const ASSERT_FAILS: RuleMeta = {
 export const NOT_PORTABLE: RuleMeta = {
   id: "layout-not-portable",
   severity: "warning",
-  summary: "A type that crosses the boundary has a layout ferrule does not compute on some target (bit-fields under Microsoft rules, flexible array members inside aggregates, …).",
+  summary: "A type that crosses the boundary has a layout ferrule does not compute on some target (zero-width bit-fields, bit-fields under #pragma pack, flexible array members inside aggregates, …).",
   why: "The layout depends on compiler rules no ABI document fixes; check it with the compiler for that target or avoid the construct at the boundary.",
 };
 
@@ -232,6 +232,25 @@ function fieldLabel(i: number, name: string): string {
   return `field ${i + 1}${name ? ` \`${name}\`` : ""}`;
 }
 
+/**
+ * A C struct of bit-fields only (a register word) mirrored, as a field, by a Rust unsigned integer
+ * with the same size and alignment on this target: the same bytes (common practice: Rust has no
+ * bit-fields, so the mirror holds the whole word and shifts and masks; which bits each field takes
+ * is the ABI's bit-field rule). Only as a field: passed or returned by value, a struct and an
+ * integer may travel differently (the i386 psABI returns every struct in memory).
+ */
+function registerWord(model: Model, r: AbiType, c: AbiType, t: Triple, a: FieldLayout, b: FieldLayout): boolean {
+  const rr = model.resolve(r, "rust");
+  if (rr.k !== "scalar") return false;
+  const s = scalarInfo(rr.s, t);
+  if (s.cls !== "int" || s.signed) return false;
+  const cr = model.resolve(c, "c");
+  if (cr.k !== "named") return false;
+  const d = model.aggregate(cr, "c");
+  if (!d || d.kind !== "struct" || d.fields.length === 0 || !d.fields.every((f) => f.bits !== undefined)) return false;
+  return a.size === b.size && a.align === b.align;
+}
+
 function diffOn(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): FieldDiff | undefined {
   const rf = p.rust.fields;
   const cf = p.c.fields;
@@ -243,7 +262,7 @@ function diffOn(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): Field
       const b = lc.fields?.[i];
       if (!a || !b) break;
       const td = compareOn(model, rf[i]!.type, cf[i]!.type, t);
-      const typeBad = td && td.kind !== "const" && td.kind !== "name" && td.kind !== "nullable";
+      const typeBad = td && td.kind !== "const" && td.kind !== "name" && td.kind !== "nullable" && !registerWord(model, rf[i]!.type, cf[i]!.type, t, a, b);
       if (a.offset === b.offset && a.size === b.size && !typeBad) continue;
       const rt = spellType(rf[i]!.type, "rust");
       const ct = spellType(cf[i]!.type, "c");

@@ -1,7 +1,7 @@
-/* Radio-telescope correlator: status word with bit-fields, mirrored in Rust. */
+/* Radio-telescope correlator: packed status word with bit-fields, mirrored in Rust. */
 #include <stdint.h>
 
-struct corr_status {
+struct __attribute__((packed)) corr_status {
     uint32_t locked : 1;
     uint32_t overflow : 1;
     uint32_t channel : 10;
