@@ -2,6 +2,7 @@
 import { expect, test } from "vitest";
 import * as fs from "node:fs";
 import * as path from "node:path";
+import { spawnSync } from "node:child_process";
 import { FAMILIES, INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON } from "../server/src/rules/index.js";
 import { rulesMarkdown } from "../server/src/cli/rules-doc.js";
 
@@ -22,3 +23,11 @@ test("every rule id is unique", () => {
   const ids = FAMILIES.flatMap((f) => f.rules.map((r) => r.id));
   expect(new Set(ids).size).toBe(ids.length);
 });
+
+test("the README's sample text output is what `ferrule check` prints on the demo", () => {
+  const root = path.resolve(__dirname, "..");
+  const sample = README.split("Text output looks like this:\n\n```\n")[1]!.split("\n```")[0]!;
+  const r = spawnSync(process.execPath, [path.join(root, "bin", "ferrule.js"), "check", "test-fixtures/sonar-demo"], { cwd: root, encoding: "utf8" });
+  expect(r.status).toBe(1);
+  expect(r.stdout).toContain(sample);
+}, 60_000);
