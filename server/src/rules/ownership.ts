@@ -288,7 +288,10 @@ export function ownershipModel(model: Model): OwnershipModel {
   }
   const pairs = (rel: RelInfo, ctor: CtorInfo): boolean => {
     if (rel.stem && ctor.stem && rel.stem === ctor.stem) return true;
-    if (rel.key.startsWith("t:") && rel.key === ctor.key) return true;
+    // A `char`/byte pointer is data, not a handle type: two functions passing one pair by the
+    // type alone only when they agree on the allocation kind (a CString constructor with a
+    // CString release, a boxed byte slice with a Box release); otherwise only by name stem.
+    if (rel.key.startsWith("t:") && rel.key === ctor.key) return rel.key !== "t:char" || rel.how === "drop_in_place" || sameHow(rel.how, ctor.how);
     // `*mut c_void` releaser whose cast names the constructor's type
     if (!pointeeKey(rel.fn.params[rel.param]!.type, model) && rel.inner && ctor.inner && normName(rel.inner) === normName(ctor.inner)) return true;
     return false;

@@ -205,6 +205,17 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
           const inner = argRef(fe.childForFieldName("value"), depth + 1);
           return { ...inner, cast: ta ? lastSeg(ta) : inner.cast, castRange: taRange ?? inner.castRange, text: n.text };
         }
+        // A boxed slice handed to C as its data pointer is taken back as
+        // `Box::from_raw(ptr::slice_from_raw_parts_mut(p, len))` (or `slice::from_raw_parts_mut`):
+        // the slice pointer is `p` with a length (std docs, `ptr::slice_from_raw_parts_mut`).
+        const pp = f ? pathParts(f) : undefined;
+        const bare = fe?.type === "identifier" ? fe.text : undefined;
+        const fname = pp?.name ?? bare;
+        if (fname && ["slice_from_raw_parts_mut", "slice_from_raw_parts", "from_raw_parts_mut", "from_raw_parts"].includes(fname)
+          && (bare !== undefined || pp!.head === "ptr" || pp!.head === "slice")) {
+          const inner = argRef(n.childForFieldName("arguments")?.namedChildren[0], depth + 1);
+          return { ...inner, text: n.text };
+        }
         return { text: n.text };
       }
     }
