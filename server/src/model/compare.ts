@@ -120,7 +120,12 @@ export function compareOn(model: Model, r0: AbiType, c0: AbiType, triple: Triple
       const inner = comparePointee(model, rt, ct, triple, level);
       if (inner) return inner;
     }
-    if (r.mut !== c.mut) {
+    // Rust read-only, C writable, and the C pointee an opaque handle (declared, never defined in
+    // C): C cannot read or write through a pointer to an incomplete type (C11 6.2.5p1, 6.5.3.2p4),
+    // so the writable pointer gives C nothing Rust did not grant. `Arc::into_raw` returns
+    // `*const T`; a `gm_calib *` for it is common practice.
+    const opaqueC = ct.k === "named" && model.aggregate(ct, "c")?.kind === "opaque";
+    if (r.mut !== c.mut && !(!r.mut && opaqueC)) {
       return r.mut
         ? { kind: "const", rustWrites: true, detail: `Rust takes \`${describeRust(r)}\` (may write) but C declares the pointee const (\`${describeC(c)}\`)` }
         : { kind: "const", rustWrites: false, detail: `Rust takes \`${describeRust(r)}\` (read-only) but C passes a writable \`${describeC(c)}\`` };

@@ -170,6 +170,20 @@ function pointeeName(t: AbiType): string | undefined {
   return t.k === "ptr" && t.to.k === "named" ? t.to.name : undefined;
 }
 
+/** The Rust type a Box/Arc holds, through `type` aliases (`type Shared = Mutex<Tally>`):
+ * its name, or undefined when the alias stands for a generic instance whose arguments the
+ * constructor's `Mutex::new(…)` does not show (nothing to compare). */
+function innerName(model: Model, name: string): string | undefined {
+  const r = model.resolve({ k: "named", name }, "rust");
+  return r.k === "named" ? r.name : undefined;
+}
+
+function differentInner(model: Model, a: string | undefined, b: string | undefined): boolean {
+  const ra = a && innerName(model, a);
+  const rb = b && innerName(model, b);
+  return !!ra && !!rb && normName(ra) !== normName(rb);
+}
+
 function sameHow(a: OwnHow, b: OwnHow): boolean {
   const g = (h: OwnHow) => (h === "forget" || h === "manuallydrop" ? "vec" : h);
   return g(a) === g(b);
@@ -354,7 +368,7 @@ function checkRust(model: Model, om: OwnershipModel, out: Finding[]): void {
           `\`${r.fn.symbol}\` takes the handle back with ${relText(r.how)}, but \`${c.fn.symbol}\` made it with ${howText(c.how)}`,
           [fnRel(c.fn), { range: c.site, message: `allocated here with ${howText(c.how)}` }],
           { data: { rel: r.fn.id, ctor: c.fn.id, how: c.how, calleeRange: r.calleeRange } }));
-      } else if (r.inner && c.inner && normName(r.inner) !== normName(c.inner)) {
+      } else if (differentInner(model, r.inner, c.inner)) {
         out.push(finding(RELEASE_KIND, r.site,
           `\`${r.fn.symbol}\` frees the handle as \`${boxOf(r.how)}<${r.inner}>\`, but \`${c.fn.symbol}\` allocated a \`${boxOf(c.how)}<${c.inner}>\``,
           [fnRel(c.fn), { range: c.site, message: `allocated here as ${c.inner}` }],

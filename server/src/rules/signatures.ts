@@ -30,7 +30,7 @@ export const PARAM_SIGN: RuleMeta = {
 export const CONSTNESS: RuleMeta = {
   id: "pointer-constness",
   severity: "error",
-  summary: "A pointer is const on one side and writable on the other.",
+  summary: "A pointer is const on one side and writable on the other (a Rust read-only pointer to an opaque C handle, which C cannot dereference, is not).",
   why: "Rust writing through a pointer the header declares const mutates data the C++ caller believes is unchanged (and may live in read-only memory).",
 };
 export const RETURN_TYPE: RuleMeta = {

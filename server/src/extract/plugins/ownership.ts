@@ -3,8 +3,9 @@
 // Rust (every function item with a body, exported or helper): what the body turns into a raw
 // pointer (Box::into_raw, Box::leak, Arc::into_raw, CString::into_raw, mem::forget,
 // ManuallyDrop::new), what it takes back (Box::from_raw, Arc::from_raw, CString::from_raw,
-// Vec::from_raw_parts, ptr::drop_in_place, a Box<T> parameter), what it borrows (&*p, &mut *p,
-// p.as_ref(), p.as_mut()), null checks, panic sites, catch_unwind regions and calls to other
+// Arc/Rc::decrement_strong_count, Vec::from_raw_parts, ptr::drop_in_place, a Box<T> parameter),
+// what it borrows (&*p, &mut *p, p.as_ref(), p.as_mut(), Arc::from_raw(p) after
+// Arc::increment_strong_count(p)), null checks, panic sites, catch_unwind regions and calls to other
 // functions (so rules can follow helpers inside the crate). Stored in `fn.body.ownership`.
 //
 // C/C++ (once per file): every function definition becomes a flow of events in source order
@@ -163,6 +164,8 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
   }
   const aliases = new Map<string, RustArg>();
   const protectedRanges: Range[] = [];
+  /** Pointers this body has passed to `Arc/Rc::increment_strong_count` so far (source order). */
+  const retained = new Set<string>();
   const isProtected = (n: Node) => protectedRanges.some((r) =>
     (n.startPosition.row > r.line || (n.startPosition.row === r.line && n.startPosition.column >= r.col)) &&
     (n.startPosition.row < r.endLine || (n.startPosition.row === r.endLine && n.startPosition.column < r.endCol)));
@@ -425,6 +428,25 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       }
       if (head === "Vec" && name === "into_raw_parts") {
         own.produces.push({ how: "vec", range, protected: prot });
+        return;
+      }
+      if ((head === "Arc" || head === "Rc") && name === "increment_strong_count") {
+        const r = argRef(a0);
+        if (r.ident) retained.add(r.ident);
+        return;
+      }
+      if ((head === "Arc" || head === "Rc") && name === "from_raw" && argRef(a0).ident && retained.has(argRef(a0).ident!)) {
+        // `increment_strong_count(p)` then `from_raw(p)`: the new Arc owns the count just added and
+        // the caller keeps its own (std docs, `Arc::increment_strong_count`): a borrow.
+        const r = argRef(a0);
+        own.borrows.push({ ident: r.ident!, mut: false, range });
+        return;
+      }
+      if ((head === "Arc" || head === "Rc") && name === "decrement_strong_count") {
+        // drops one strong count, freeing the value with the last one: `drop(Arc::from_raw(p))`
+        // (std docs, `Arc::decrement_strong_count`). No calleeRange: a fix that rewrote the path to
+        // another `from_raw` would leave the value undropped.
+        own.releases.push({ how: head.toLowerCase() as OwnHow, arg: argRef(a0), inner: turbofish ? lastSeg(turbofish) : undefined, range });
         return;
       }
       if (["Box", "Arc", "Rc", "CString"].includes(head) && name === "from_raw") {
