@@ -121,6 +121,38 @@ describe("chunked check = whole check", () => {
     expect((await chunked([ws], 1)).findings).toEqual(w2);
   }, 60_000);
 
+  test("a constructor and a release that pair only by a scalar pointee (a boxed byte frame, its release in another file)", async () => {
+    // rules/ownership.ts pairs a constructor with a release function by the handle's pointee type,
+    // scalars too (`*mut u8` made by Box::into_raw of a boxed slice, taken back by Box::from_raw),
+    // when their names share no stem; the files share no linked name.
+    const ws = path.join(tmp, "scalar-handle");
+    fs.mkdirSync(path.join(ws, "src"), { recursive: true });
+    fs.writeFileSync(path.join(ws, "src", "frame.rs"), [
+      "#[no_mangle]",
+      "pub unsafe extern \"C\" fn tide_frame_encode(len: *mut usize) -> *mut u8 {",
+      "    let frame: Box<[u8]> = vec![0u8; 16].into_boxed_slice();",
+      "    *len = frame.len();",
+      "    Box::into_raw(frame) as *mut u8",
+      "}",
+      "",
+    ].join("\n"));
+    fs.writeFileSync(path.join(ws, "src", "bytes.rs"), [
+      "#[no_mangle]",
+      "pub unsafe extern \"C\" fn tide_bytes_dispose(p: *mut u8, len: usize) {",
+      "    if !p.is_null() {",
+      "        drop(Box::from_raw(std::ptr::slice_from_raw_parts_mut(p, len)));",
+      "    }",
+      "}",
+      "",
+    ].join("\n"));
+    // (declared in two headers: one header declaring both would relate the files by itself)
+    fs.writeFileSync(path.join(ws, "frame.h"), "#include <stddef.h>\n#include <stdint.h>\nuint8_t *tide_frame_encode(size_t *len);\n");
+    fs.writeFileSync(path.join(ws, "bytes.h"), "#include <stddef.h>\n#include <stdint.h>\nvoid tide_bytes_dispose(uint8_t *p, size_t len);\n");
+    const w = await whole([ws]);
+    expect(w.some((l) => l.startsWith("handle-no-release\t"))).toBe(false);
+    expect((await chunked([ws], 1)).findings).toEqual(w);
+  }, 60_000);
+
   test("the shipped CLI with two worker threads, facts compressed or sent as they are", async () => {
     // all fixtures as one workspace, in chunks of one group: exactly the whole check's findings
     const ws = await Workspace.create();

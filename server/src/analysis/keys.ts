@@ -1,7 +1,8 @@
 // The names a file's facts declare and use: how analysis relates files without building a model.
 // The language server's scoped re-check (lsp/engine.ts) and the CLI's chunked check
 // (analysis/chunks.ts) both take "the files a finding can depend on" from these keys:
-//   s:SYMBOL  a linked function symbol;  t:NAME  a type name (normalised);
+//   s:SYMBOL  a linked function symbol;  t:NAME  a type name (normalised), or the scalar a
+//             constructor's or release function's handle points to (t:char, t:f32);
 //   h:STEM    a constructor/releaser name stem of the ownership family;
 //   r:NAME    a Rust function with body facts, and a Rust call the ownership rules resolve by
 //             name across files (rules/ownership.ts CrateIndex: a method call always, a plain
@@ -13,7 +14,7 @@
 import { normName } from "../model/boundary.js";
 import type { AbiType, FileFacts } from "../model/types.js";
 import type { RustOwnFacts } from "../model/ownership.js";
-import { pairingStems } from "../rules/ownership.js";
+import { pairingStems, scalarPointeeKey } from "../rules/ownership.js";
 
 export interface Keys {
   decl: Set<string>;
@@ -73,6 +74,14 @@ export function keysOf(f: FileFacts | undefined, local?: ReadonlySet<string>): K
     if (own) {
       for (const p of own.produces) if (p.inner) use.add("t:" + normName(p.inner));
       for (const r of own.releases) if (r.inner) use.add("t:" + normName(r.inner));
+      // a constructor or release function whose handle points to a scalar (a boxed byte frame, a
+      // C string): the ownership family pairs them by that pointee when no name stem does
+      if (own.produces.length || own.releases.length) {
+        for (const t of [fn.ret, ...fn.params.map((p) => p.type)]) {
+          const k = scalarPointeeKey(t);
+          if (k) use.add(k);
+        }
+      }
     }
   }
   for (const t of f.types) {

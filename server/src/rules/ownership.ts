@@ -152,11 +152,18 @@ function isBoundaryExport(fn: FnDecl): boolean {
   return fn.lang === "rust" && fn.role === "export" && !(fn as FnDecl & { internal?: boolean }).internal && !!fn.isExtern && fn.abi !== "Rust";
 }
 
+/** The pairing key of a pointer to a scalar (`*mut u8` and `char *` alike: "t:char"); the
+ * analysis keys (analysis/keys.ts) relate files by it too. */
+export function scalarPointeeKey(t: AbiType): string | undefined {
+  if (t.k !== "ptr" || t.to.k !== "scalar") return undefined;
+  return ["char", "schar", "uchar", "i8", "u8"].includes(t.to.s) ? "t:char" : `t:${t.to.s}`;
+}
+
 function pointeeKey(t: AbiType, model: Model): string | undefined {
   if (t.k !== "ptr") return undefined;
   const to = t.to;
   if (to.k === "void") return undefined;
-  if (to.k === "scalar") return ["char", "schar", "uchar", "i8", "u8"].includes(to.s) ? "t:char" : `t:${to.s}`;
+  if (to.k === "scalar") return scalarPointeeKey(t);
   if (to.k === "named") {
     const r = model.resolve(to, "rust");
     if (r.k === "void") return undefined;
