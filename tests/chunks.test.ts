@@ -55,6 +55,16 @@ function fixtureWorkspaces(): string[] {
   return out;
 }
 
+/** Writes a small workspace under the test's temp folder: relative path → lines. */
+function writeWorkspace(name: string, files: Record<string, string[]>): string {
+  const ws = path.join(tmp, name);
+  for (const [rel, lines] of Object.entries(files)) {
+    fs.mkdirSync(path.dirname(path.join(ws, rel)), { recursive: true });
+    fs.writeFileSync(path.join(ws, rel), lines.join("\n") + "\n");
+  }
+  return ws;
+}
+
 describe("chunked check = whole check", () => {
   test("every fixture workspace, chunks of 1 and of the default size", async () => {
     const dirs = fixtureWorkspaces();
@@ -94,23 +104,21 @@ describe("chunked check = whole check", () => {
   test("a Rust helper in another file of the crate: found through it, and not when its name is ambiguous", async () => {
     // Rules follow a call into a helper of another file when the name is unique (rules/ownership.ts
     // CrateIndex); the files share no linked name, only the `r:` helper key (analysis/keys.ts).
-    const ws = path.join(tmp, "helper");
-    fs.mkdirSync(path.join(ws, "src"), { recursive: true });
-    fs.writeFileSync(path.join(ws, "src", "lib.rs"), [
-      "#[unsafe(no_mangle)]",
-      "pub extern \"C\" fn flash_window(idx: usize) -> u32 {",
-      "    window_len(idx)",
-      "}",
-      "",
-    ].join("\n"));
-    fs.writeFileSync(path.join(ws, "src", "tables.rs"), [
-      "const WINDOWS: [u32; 4] = [32, 64, 128, 256];",
-      "pub fn window_len(idx: usize) -> u32 {",
-      "    WINDOWS[idx]",
-      "}",
-      "",
-    ].join("\n"));
-    fs.writeFileSync(path.join(ws, "flash.h"), "#include <stdint.h>\n#include <stddef.h>\nuint32_t flash_window(size_t idx);\n");
+    const ws = writeWorkspace("helper", {
+      "src/lib.rs": [
+        "#[unsafe(no_mangle)]",
+        "pub extern \"C\" fn flash_window(idx: usize) -> u32 {",
+        "    window_len(idx)",
+        "}",
+      ],
+      "src/tables.rs": [
+        "const WINDOWS: [u32; 4] = [32, 64, 128, 256];",
+        "pub fn window_len(idx: usize) -> u32 {",
+        "    WINDOWS[idx]",
+        "}",
+      ],
+      "flash.h": ["#include <stdint.h>", "#include <stddef.h>", "uint32_t flash_window(size_t idx);"],
+    });
     const w = await whole([ws]);
     expect(w.some((l) => l.startsWith("panic-across-c-abi\t") && l.includes("/src/lib.rs\t2\t"))).toBe(true);
     expect((await chunked([ws], 1)).findings).toEqual(w);
@@ -125,29 +133,27 @@ describe("chunked check = whole check", () => {
     // rules/ownership.ts pairs a constructor with a release function by the handle's pointee type,
     // scalars too (`*mut u8` made by Box::into_raw of a boxed slice, taken back by Box::from_raw),
     // when their names share no stem; the files share no linked name.
-    const ws = path.join(tmp, "scalar-handle");
-    fs.mkdirSync(path.join(ws, "src"), { recursive: true });
-    fs.writeFileSync(path.join(ws, "src", "frame.rs"), [
-      "#[no_mangle]",
-      "pub unsafe extern \"C\" fn tide_frame_encode(len: *mut usize) -> *mut u8 {",
-      "    let frame: Box<[u8]> = vec![0u8; 16].into_boxed_slice();",
-      "    *len = frame.len();",
-      "    Box::into_raw(frame) as *mut u8",
-      "}",
-      "",
-    ].join("\n"));
-    fs.writeFileSync(path.join(ws, "src", "bytes.rs"), [
-      "#[no_mangle]",
-      "pub unsafe extern \"C\" fn tide_bytes_dispose(p: *mut u8, len: usize) {",
-      "    if !p.is_null() {",
-      "        drop(Box::from_raw(std::ptr::slice_from_raw_parts_mut(p, len)));",
-      "    }",
-      "}",
-      "",
-    ].join("\n"));
-    // (declared in two headers: one header declaring both would relate the files by itself)
-    fs.writeFileSync(path.join(ws, "frame.h"), "#include <stddef.h>\n#include <stdint.h>\nuint8_t *tide_frame_encode(size_t *len);\n");
-    fs.writeFileSync(path.join(ws, "bytes.h"), "#include <stddef.h>\n#include <stdint.h>\nvoid tide_bytes_dispose(uint8_t *p, size_t len);\n");
+    const ws = writeWorkspace("scalar-handle", {
+      "src/frame.rs": [
+        "#[no_mangle]",
+        "pub unsafe extern \"C\" fn tide_frame_encode(len: *mut usize) -> *mut u8 {",
+        "    let frame: Box<[u8]> = vec![0u8; 16].into_boxed_slice();",
+        "    *len = frame.len();",
+        "    Box::into_raw(frame) as *mut u8",
+        "}",
+      ],
+      "src/bytes.rs": [
+        "#[no_mangle]",
+        "pub unsafe extern \"C\" fn tide_bytes_dispose(p: *mut u8, len: usize) {",
+        "    if !p.is_null() {",
+        "        drop(Box::from_raw(std::ptr::slice_from_raw_parts_mut(p, len)));",
+        "    }",
+        "}",
+      ],
+      // (declared in two headers: one header declaring both would relate the files by itself)
+      "frame.h": ["#include <stddef.h>", "#include <stdint.h>", "uint8_t *tide_frame_encode(size_t *len);"],
+      "bytes.h": ["#include <stddef.h>", "#include <stdint.h>", "void tide_bytes_dispose(uint8_t *p, size_t len);"],
+    });
     const w = await whole([ws]);
     expect(w.some((l) => l.startsWith("handle-no-release\t"))).toBe(false);
     expect((await chunked([ws], 1)).findings).toEqual(w);
