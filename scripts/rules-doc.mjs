@@ -8,12 +8,12 @@ import { fileURLToPath } from "node:url";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-doc-")), "doc.cjs");
-fs.writeFileSync(out + ".entry.ts", `export { FAMILIES, INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON } from ${JSON.stringify(path.join(root, "server/src/rules/index.ts"))};\nexport { rulesMarkdown, replaceRulesSection } from ${JSON.stringify(path.join(root, "server/src/cli/rules-doc.ts"))};\n`);
+fs.writeFileSync(out + ".entry.ts", `export { FAMILIES, INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON } from ${JSON.stringify(path.join(root, "server/src/rules/index.ts"))};\nexport { rulesMarkdown, replaceRulesSection } from ${JSON.stringify(path.join(root, "server/src/cli/rules-doc.ts"))};\n`);
 await esbuild.build({ entryPoints: [out + ".entry.ts"], outfile: out, bundle: true, platform: "node", format: "cjs", logLevel: "warning" });
 const m = createRequire(import.meta.url)(out);
 const readmePath = path.join(root, "README.md");
 const readme = fs.readFileSync(readmePath, "utf8");
-const next = m.replaceRulesSection(readme, m.rulesMarkdown(m.FAMILIES, [m.INTERNAL, m.FILE_SKIPPED, m.UNKNOWN_MACRO, m.SUPPRESSION_WITHOUT_REASON]));
+const next = m.replaceRulesSection(readme, m.rulesMarkdown(m.FAMILIES, [m.INTERNAL, m.FILE_SKIPPED, m.FILE_ENCODING, m.UNKNOWN_MACRO, m.SUPPRESSION_WITHOUT_REASON]));
 if (next !== readme) {
   fs.writeFileSync(readmePath, next);
   console.log("README.md rules table updated");

@@ -3,13 +3,13 @@ import { expect, test } from "vitest";
 import * as fs from "node:fs";
 import * as path from "node:path";
 import { spawnSync } from "node:child_process";
-import { FAMILIES, INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON } from "../server/src/rules/index.js";
+import { FAMILIES, INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON } from "../server/src/rules/index.js";
 import { rulesMarkdown } from "../server/src/cli/rules-doc.js";
 
 const README = fs.readFileSync(path.resolve(__dirname, "../README.md"), "utf8");
 
 test("README rules table is generated from the rule metadata (run npm run docs:rules)", () => {
-  expect(README).toContain(rulesMarkdown(FAMILIES, [INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON]));
+  expect(README).toContain(rulesMarkdown(FAMILIES, [INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON]));
 });
 
 test("README starts with one paragraph, then the demo command and the test command", () => {

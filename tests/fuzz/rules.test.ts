@@ -107,7 +107,7 @@ describe("the runner turns a throwing family into one internal finding", () => {
       const internal = out.filter((f) => f.rule === "internal-error");
       expect(internal).toHaveLength(1);
       expect(internal[0]!.message).toContain(fam.name);
-      expect(internal[0]!.severity).toBe("warning");
+      expect(internal[0]!.severity).toBe("error"); // fail closed (issue "hostile repositories"): was a warning
       // the rest stands, unchanged
       const key = (f: Finding) => `${f.rule}@${f.range.file}:${f.range.line}:${f.range.col}`;
       expect(out.filter((f) => f.rule !== "internal-error").map(key)).toEqual(normal.map(key));

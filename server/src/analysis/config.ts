@@ -5,6 +5,7 @@
 import { parse as parseToml } from "smol-toml";
 import { ALL_TRIPLES, parseTriple, type Triple } from "../model/targets.js";
 import type { Severity } from "../model/types.js";
+import { allRules } from "../rules/index.js";
 
 export const CONFIG_FILE = ".ferrule.toml";
 
@@ -38,6 +39,31 @@ export class ConfigError extends Error {
 }
 
 const SEVERITIES = ["error", "warning", "info", "hint", "off"];
+/** Top-level settings, and the tables handed to rule families (`[ports]`, `[layout]`). */
+const TOP_KEYS = ["targets", "include_paths", "exclude", "strip_macros", "max_file_bytes", "rules"];
+const FAMILY_TABLES = ["ports", "layout"];
+
+/** ` — did you mean \`x\`?` for a close name (edit distance ≤ 2), else "". */
+function nearest(name: string, known: string[]): string {
+  let best: string | undefined;
+  let bestD = 3;
+  for (const k of known) {
+    const d = editDistance(name, k);
+    if (d < bestD) [best, bestD] = [k, d];
+  }
+  return best ? ` — did you mean \`${best}\`?` : "";
+}
+
+function editDistance(a: string, b: string): number {
+  if (Math.abs(a.length - b.length) > 2) return 3;
+  let prev = Array.from({ length: b.length + 1 }, (_, i) => i);
+  for (let i = 1; i <= a.length; i++) {
+    const cur = [i];
+    for (let j = 1; j <= b.length; j++) cur[j] = Math.min(prev[j]! + 1, cur[j - 1]! + 1, prev[j - 1]! + (a[i - 1] === b[j - 1] ? 0 : 1));
+    prev = cur;
+  }
+  return prev[b.length]!;
+}
 
 function strList(v: unknown, file: string, key: string): string[] {
   if (!Array.isArray(v) || v.some((x) => typeof x !== "string")) throw new ConfigError(file, key, "expected a list of strings");
@@ -73,22 +99,28 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
         cfg.stripMacros = strList(v, file, k);
         break;
       case "max_file_bytes":
-      case "maxFileBytes":
-        if (typeof v !== "number" && typeof v !== "bigint") throw new ConfigError(file, k, "expected a number");
-        cfg.maxFileBytes = Number(v);
+      case "maxFileBytes": {
+        // a size of 0, a negative or fractional size or NaN would skip every file and pass
+        const n = typeof v === "bigint" ? Number(v) : v;
+        if (typeof n !== "number" || !Number.isInteger(n) || n < 1) throw new ConfigError(file, k, `expected a whole number of bytes of at least 1 (got ${typeof v === "string" ? JSON.stringify(v) : String(v)})`);
+        cfg.maxFileBytes = n;
         break;
+      }
       case "rules":
       case "severity": {
         if (typeof v !== "object" || v === null || Array.isArray(v)) throw new ConfigError(file, k, "expected a table of rule = severity");
+        const ids = new Set(allRules().map((r) => r.id));
         for (const [rule, sev] of Object.entries(v as Record<string, unknown>)) {
+          if (!ids.has(rule)) throw new ConfigError(file, `${k}.${rule}`, `unknown rule id \`${rule}\`${nearest(rule, [...ids])} (rule ids: ${[...ids].sort().join(", ")})`);
           if (typeof sev !== "string" || !SEVERITIES.includes(sev)) throw new ConfigError(file, `${k}.${rule}`, `expected one of ${SEVERITIES.join(", ")}`);
           cfg.severity[rule] = sev as Severity | "off";
         }
         break;
       }
       default:
-        if (typeof v === "object" && v !== null && !Array.isArray(v)) cfg.families[k] = v;
-        else throw new ConfigError(file, k, "unknown setting");
+        if (FAMILY_TABLES.includes(k) && typeof v === "object" && v !== null && !Array.isArray(v)) cfg.families[k] = v;
+        else if (FAMILY_TABLES.includes(k)) throw new ConfigError(file, k, "expected a table");
+        else throw new ConfigError(file, k, `unknown setting${nearest(k, [...TOP_KEYS, ...FAMILY_TABLES])} (settings: ${[...TOP_KEYS, ...FAMILY_TABLES].join(", ")})`);
     }
   }
   return cfg;

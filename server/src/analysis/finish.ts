@@ -23,7 +23,8 @@ export function withSeverity(raw: Finding[], config: Pick<FerruleConfig, "severi
 export function dedupe(fs_: Finding[]): Finding[] {
   const seen = new Set<string>();
   return fs_.filter((f) => {
-    const k = `${f.rule}|${f.range.file}|${f.range.line}|${f.range.col}|${f.message}`;
+    // an internal error once per run: a check in chunks runs each family once per chunk
+    const k = f.rule === "internal-error" && f.range.line === 0 && f.range.col === 0 ? `${f.rule}|${f.message}` : `${f.rule}|${f.range.file}|${f.range.line}|${f.range.col}|${f.message}`;
     if (seen.has(k)) return false;
     seen.add(k);
     return true;

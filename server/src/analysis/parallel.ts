@@ -7,6 +7,7 @@
 // thing (see cli/index.ts), which is why callers pass the bundle path explicitly. Without a
 // script (tests, which run the TypeScript sources) everything runs in-process.
 
+import { encodingNotice, readSource } from "./textio.js";
 import * as fs from "node:fs";
 import * as os from "node:os";
 import { createHash } from "node:crypto";
@@ -50,12 +51,13 @@ const BATCH = 8;
 /** Reads one file and extracts its facts; the same outcomes as Workspace.load (never throws). */
 export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract", stripMacros?: readonly string[]): LoadedFile {
   let text: string;
+  let note: string | undefined;
   try {
     const st = fs.statSync(file);
     if (st.size > maxFileBytes * 4) {
       return { file, hash: "", facts: skippedFacts(file, `${st.size} bytes, above the limit of ${maxFileBytes} (setting max_file_bytes)`) };
     }
-    text = fs.readFileSync(file, "utf8");
+    ({ text, note } = readSource(file));
   } catch (e) {
     return { file, hash: "", facts: skippedFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`) };
   }
@@ -67,7 +69,9 @@ export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "
     } catch { /* the floor only measures parsing */ }
     return { file, hash, facts: emptyFacts(file, lang) };
   }
-  return { file, hash, facts: extractFile(file, text, { maxFileBytes, stripMacros }) };
+  const facts = extractFile(file, text, { maxFileBytes, stripMacros });
+  if (note) facts.notices.push(encodingNotice(file, note));
+  return { file, hash, facts };
 }
 
 /** The running bundle (dist/cli.js) when this code runs from one; undefined under the test

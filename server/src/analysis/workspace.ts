@@ -4,6 +4,7 @@
 
 import * as fs from "node:fs";
 import * as path from "node:path";
+import picomatch from "picomatch";
 import { createHash } from "node:crypto";
 import { extractFile, initParsers, type ExtractOptions, skippedFacts } from "../extract/index.js";
 import { langOf } from "../parse/parser.js";
@@ -18,6 +19,7 @@ import { HeapBudget } from "./memory.js";
 import { checkChunk, planChunks } from "./chunks.js";
 import type { Fix } from "../fixes/index.js";
 import { IncludeIndex } from "../model/includes.js";
+import { encodingNotice, readSource } from "./textio.js";
 
 export const SKIP_DIRS = new Set(["target", "node_modules", ".git", "build", "out", "dist", ".cache", ".svn", ".hg", "__pycache__"]);
 
@@ -43,7 +45,9 @@ export function listSources(paths: string[], exclude: string[] = [], onProgress?
   const seen = new Set<string>();
   const rootReals = roots.map((r) => { try { return fs.realpathSync(path.resolve(r)); } catch { return path.resolve(r); } });
   const inside = (real: string) => rootReals.some((r) => real === r || real.startsWith(r.endsWith(path.sep) ? r : r + path.sep));
-  const excluded = (p: string) => exclude.some((g) => globMatch(g, p));
+  const globs = compileExcludes(exclude);
+  let base = "";
+  const excluded = (p: string) => globs.test(path.relative(base, p).split(path.sep).join("/") || path.basename(p));
   const visit = (p: string, depth: number) => {
     let st: fs.Stats;
     try {
@@ -78,7 +82,14 @@ export function listSources(paths: string[], exclude: string[] = [], onProgress?
       if (onProgress && files.length % 200 === 0) onProgress(files.length);
     }
   };
-  for (const p of paths) visit(path.resolve(p), 0);
+  for (const p of paths) {
+    const abs = path.resolve(p);
+    base = isDir(abs) ? abs : path.dirname(abs);
+    visit(abs, 0);
+  }
+  for (const g of globs.unused()) {
+    notices.push({ rule: "file-skipped", severity: "info", message: `exclude pattern \`${g}\` matches no file under the checked paths`, range: { file: path.resolve(paths[0] ?? "."), line: 0, col: 0, endLine: 0, endCol: 0 }, related: [] });
+  }
   return { files, notices };
 }
 
@@ -86,9 +97,37 @@ function skipNotice(file: string, why: string): Finding {
   return { rule: "file-skipped", severity: "info", message: `skipped: ${file}: ${why}`, range: { file, line: 0, col: 0, endLine: 0, endCol: 0 }, related: [] };
 }
 
-function globMatch(glob: string, p: string): boolean {
-  const re = new RegExp("(^|/)" + glob.replace(/[.+^${}()|[\]\\]/g, "\\$&").replace(/\*\*\/?/g, "\u0000").replace(/\*/g, "[^/]*").replace(/\?/g, "[^/]").replace(/\u0000/g, ".*") + "($|/)");
-  return re.test(p);
+function isDir(p: string): boolean {
+  try { return fs.statSync(p).isDirectory(); } catch { return false; }
+}
+
+/**
+ * The `exclude` globs, compiled once per walk with picomatch (full glob syntax: `**`, braces,
+ * classes, `!` to take a path back). A path is relative to the checked folder, with `/`. A
+ * pattern that does not start with `/` or `./` matches at any depth, and a pattern naming a
+ * folder excludes everything below it (`third_party` = `**\/third_party/**`).
+ */
+export function compileExcludes(globs: string[]): { test(rel: string): boolean; unused(): string[] } {
+  const compiled = globs.map((g) => {
+    const neg = g.startsWith("!");
+    let body = neg ? g.slice(1) : g;
+    const anchored = body.startsWith("/") || body.startsWith("./");
+    body = body.replace(/^\.?\/+/, "").replace(/\/+$/, "");
+    const pats = anchored ? [body, `${body}/**`] : [body, `${body}/**`, `**/${body}`, `**/${body}/**`];
+    return { g, neg, match: picomatch(pats, { dot: true }), used: false };
+  });
+  const pos = compiled.filter((c) => !c.neg);
+  const neg = compiled.filter((c) => c.neg);
+  return {
+    test(rel: string): boolean {
+      let hit = false;
+      for (const c of pos) if (c.match(rel)) { c.used = true; hit = true; }
+      if (!hit) return false;
+      for (const c of neg) if (c.match(rel)) { c.used = true; return false; }
+      return true;
+    },
+    unused: () => compiled.filter((c) => !c.used).map((c) => c.g),
+  };
 }
 
 /**
@@ -167,18 +206,20 @@ export class Workspace {
   /** Reads a file from disk into the workspace; unreadable files become a notice. */
   load(file: string, opts: Omit<ExtractOptions, "maxFileBytes"> = {}): void {
     let text: string;
+    let note: string | undefined;
     try {
       const st = fs.statSync(file);
       if (st.size > this.config.maxFileBytes * 4) {
         this.setFacts(file, skippedFacts(file, `${st.size} bytes, above the limit of ${this.config.maxFileBytes} (setting max_file_bytes)`));
         return;
       }
-      text = fs.readFileSync(file, "utf8");
+      ({ text, note } = readSource(file));
     } catch (e) {
       this.setFacts(file, skippedFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`));
       return;
     }
     this.update(file, text, opts);
+    if (note) this.entries.get(file)?.facts.notices.push(encodingNotice(file, note));
   }
 
   private setFacts(file: string, facts: FileFacts) {

@@ -2,7 +2,7 @@
 // Entries are keyed by rule + file + message (no line numbers, which move with unrelated edits),
 // with a count for repeated identical findings. The format is our own, versioned JSON.
 
-import * as fs from "node:fs";
+import { readSmallRegularFile } from "../analysis/textio.js";
 import type { JsonFinding } from "./format.js";
 
 export interface BaselineFile {
@@ -24,7 +24,7 @@ export function makeBaseline(findings: JsonFinding[]): BaselineFile {
 }
 
 export function readBaseline(file: string): BaselineFile {
-  const obj = JSON.parse(fs.readFileSync(file, "utf8")) as BaselineFile;
+  const obj = JSON.parse(readSmallRegularFile(file)) as BaselineFile;
   if (obj?.ferruleBaseline !== 1 || !Array.isArray(obj.entries)) throw new Error("not a ferrule baseline (expected {\"ferruleBaseline\":1,\"entries\":[…]})");
   return obj;
 }

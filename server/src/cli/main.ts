@@ -13,6 +13,7 @@ import { allRules } from "../rules/index.js";
 import { formatJson, formatSarif, formatText, toJsonFinding, type JsonFinding } from "./format.js";
 import { formatLayoutText, layoutTypes } from "./layout-cmd.js";
 import { makeBaseline, newSince, readBaseline } from "./baseline.js";
+import { readSmallRegularFile, UnsafeFileError } from "../analysis/textio.js";
 
 export const VERSION = "0.1.0";
 
@@ -101,13 +102,17 @@ function findConfig(paths: string[], cwd: string): string | undefined {
   return undefined;
 }
 
-export function loadConfig(file: string | undefined, cwd: string): FerruleConfig {
+export function loadConfig(file: string | undefined, cwd: string, named = false): FerruleConfig {
   if (!file) return DEFAULTS;
   const shown = path.relative(cwd, file) || file;
   let text: string;
   try {
-    text = fs.readFileSync(file, "utf8");
+    // a committed config may be a pipe, a device or a link out of the project: read it only when
+    // it is a small regular file (a link only within the folder it configures, unless the user
+    // named it with --config)
+    text = readSmallRegularFile(file, { root: named ? undefined : path.dirname(file) });
   } catch (e) {
+    if (e instanceof UnsafeFileError) throw new ConfigError(shown, "", e.message);
     throw new ConfigError(shown, "", `cannot read: ${(e as NodeJS.ErrnoException).code}`);
   }
   const cfg = parseConfigText(text, shown);
@@ -156,7 +161,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   let cfg: FerruleConfig;
   try {
     const cfgFile = o.config ? path.resolve(io.cwd, o.config) : findConfig(paths, io.cwd);
-    cfg = loadConfig(cfgFile, io.cwd);
+    cfg = loadConfig(cfgFile, io.cwd, !!o.config);
   } catch (e) {
     if (e instanceof ConfigError) {
       io.stderr(`ferrule: configuration error: ${e.message}\n`);
@@ -210,7 +215,12 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   let baselined = 0;
   if (o.baseline) {
     const file = path.resolve(io.cwd, o.baseline);
-    if (!fs.existsSync(file) || o.updateBaseline) {
+    if (!o.updateBaseline && !fs.existsSync(file)) {
+      // a mistyped path must not turn into a fresh baseline that hides every finding
+      io.stderr(`ferrule: baseline ${o.baseline}: no such file (to create it, run once with --update-baseline)\n`);
+      return 2;
+    }
+    if (o.updateBaseline) {
       // The only file `check` ever writes, and only where the user named it.
       fs.writeFileSync(file, JSON.stringify(makeBaseline(json), null, 2) + "\n");
       io.stderr(`ferrule: wrote baseline of ${json.length} finding(s) to ${o.baseline}\n`);

@@ -169,7 +169,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     }
     f.notices.push({
       rule: "internal-error",
-      severity: "warning",
+      severity: "error",
       message: `ferrule could not read ${file}: ${(e as Error).message}`,
       range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
     });

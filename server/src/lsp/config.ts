@@ -5,6 +5,7 @@
 
 import * as fs from "node:fs";
 import * as path from "node:path";
+import { readSmallRegularFile, UnsafeFileError } from "../analysis/textio.js";
 import { parse as parseToml } from "smol-toml";
 import { CONFIG_FILE, ConfigError, DEFAULTS, configFromObject, type FerruleConfig } from "../analysis/config.js";
 
@@ -62,12 +63,13 @@ export function fromSettings(s: EditorSettings | undefined, base: FerruleConfig,
 
 export function fromTomlFile(file: string, base: FerruleConfig, problems: ConfigProblem[]): FerruleConfig {
   let text: string;
+  const shown = CONFIG_FILE;
   try {
-    text = fs.readFileSync(file, "utf8");
-  } catch {
+    text = readSmallRegularFile(file, { root: path.dirname(file) });
+  } catch (e) {
+    if (e instanceof UnsafeFileError) problems.push({ file: shown, key: "", message: `${shown}: ${e.message} — using the defaults for everything this file would set` });
     return base;
   }
-  const shown = CONFIG_FILE;
   let obj: Record<string, unknown>;
   try {
     obj = parseToml(text) as Record<string, unknown>;

@@ -11,6 +11,7 @@
 //
 // No protocol types here: server.ts turns the results into LSP messages.
 
+import { readSource } from "../analysis/textio.js";
 import * as fs from "node:fs";
 import * as path from "node:path";
 import { createHash } from "node:crypto";
@@ -838,7 +839,7 @@ export class Engine {
     const d = this.docs.get(file);
     if (d) return d.text;
     try {
-      return fs.readFileSync(file, "utf8");
+      return readSource(file).text;
     } catch {
       return undefined;
     }

@@ -6,7 +6,7 @@ import * as fs from "node:fs";
 import * as path from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import {
-  CodeActionKind, DiagnosticSeverity, DidChangeWatchedFilesNotification, FileChangeType, LSPErrorCodes, MessageType, ShowMessageNotification,
+  CodeActionKind, DiagnosticSeverity, ErrorCodes, DidChangeWatchedFilesNotification, FileChangeType, LSPErrorCodes, MessageType, ShowMessageNotification,
   ProposedFeatures, ResponseError, SymbolKind, TextDocumentSyncKind, createConnection,
   type CancellationToken, type CodeAction, type Connection, type Diagnostic, type DocumentSymbol,
   type InitializeParams, type InitializeResult, type Location, type Range as LspRange, type TextEdit as LspTextEdit,
@@ -23,6 +23,7 @@ import { fixesFor } from "../fixes/index.js";
 import { cHeaderFor } from "../fixes/cgen.js";
 import { Engine, relPath, type AnalysisResult } from "./engine.js";
 import { resolveConfig, type EditorSettings } from "./config.js";
+import { problemOf } from "./validate.js";
 import { definitions, documentSymbols, hoverMarkdown, itemAt, layoutDocument, references } from "./features.js";
 
 export const GENERATE_HEADER_KIND = "source.generateCDeclarations.ferrule";
@@ -96,6 +97,8 @@ export interface ServerStats {
 export function startServer(conn?: Connection): void {
   const connection = conn ?? createConnection(ProposedFeatures.all);
   let engine: Engine | undefined;
+  /** After `shutdown`, requests get InvalidRequest and notifications are dropped (LSP 3.17). */
+  let shutDown = false;
   let roots: string[] = [];
   let settings: EditorSettings | undefined;
   let caps: InitializeParams["capabilities"] = {};
@@ -311,7 +314,22 @@ export function startServer(conn?: Connection): void {
 
   const early = new Map<string, { text: string; version: number }>();
 
+  /** Whether a notification is well formed and the server still takes it; logs a dropped one. */
+  const accept = (method: string, p: unknown): boolean => {
+    if (shutDown) return false;
+    const why = problemOf(method, p);
+    if (why) connection.console.log(`ferrule: dropped a malformed ${method}: ${why}`);
+    return !why;
+  };
+  /** For requests: InvalidRequest after shutdown, InvalidParams for a malformed one. */
+  const check = (method: string, p: unknown): void => {
+    if (shutDown) throw new ResponseError(ErrorCodes.InvalidRequest, "the server is shutting down");
+    const why = problemOf(method, p);
+    if (why) throw new ResponseError(ErrorCodes.InvalidParams, `malformed ${method}: ${why}`);
+  };
+
   connection.onDidOpenTextDocument((p) => {
+    if (!accept("textDocument/didOpen", p)) return;
     const file = toFile(p.textDocument.uri);
     if (!file || !langOf(file)) return;
     if (!engine) {
@@ -324,6 +342,7 @@ export function startServer(conn?: Connection): void {
   });
 
   connection.onDidChangeTextDocument((p) => {
+    if (!accept("textDocument/didChange", p)) return;
     const file = toFile(p.textDocument.uri);
     if (!file) return;
     if (!engine) {
@@ -339,6 +358,7 @@ export function startServer(conn?: Connection): void {
   });
 
   connection.onDidCloseTextDocument((p) => {
+    if (!accept("textDocument/didClose", p)) return;
     const file = toFile(p.textDocument.uri);
     if (!file) return;
     early.delete(file);
@@ -348,6 +368,7 @@ export function startServer(conn?: Connection): void {
   });
 
   connection.onDidChangeWatchedFiles(async (p) => {
+    if (!accept("workspace/didChangeWatchedFiles", p)) return;
     await ready;
     if (!engine) return;
     let reconfigure = false;
@@ -382,6 +403,7 @@ export function startServer(conn?: Connection): void {
   });
 
   async function current(token?: CancellationToken): Promise<Engine> {
+    if (shutDown) throw new ResponseError(ErrorCodes.InvalidRequest, "the server is shutting down");
     await ready;
     cancelled(token);
     if (!engine) throw new ResponseError(LSPErrorCodes.ContentModified, "ferrule is not ready");
@@ -392,6 +414,7 @@ export function startServer(conn?: Connection): void {
 
   /** The boundary item under the cursor of a position request, with the current engine. */
   async function itemRequest(p: { textDocument: { uri: string }; position: { line: number; character: number } }, token: CancellationToken | undefined) {
+    check("position", p);
     const e = await current(token);
     const file = toFile(p.textDocument.uri);
     if (!file) return null;
@@ -420,6 +443,7 @@ export function startServer(conn?: Connection): void {
   });
 
   connection.onDocumentSymbol(async (p, token) => {
+    check("uri", p);
     const e = await current(token);
     const file = toFile(p.textDocument.uri);
     if (!file) return null;
@@ -428,6 +452,7 @@ export function startServer(conn?: Connection): void {
   });
 
   connection.onCodeAction(async (p, token) => {
+    check("textDocument/codeAction", p);
     const e = await current(token);
     const file = toFile(p.textDocument.uri);
     if (!file) return null;
@@ -504,6 +529,7 @@ export function startServer(conn?: Connection): void {
   });
 
   connection.onExecuteCommand(async (p, token) => {
+    check("workspace/executeCommand", p);
     if (p.command === "ferrule.server.recheck") {
       await ready;
       cancelled(token);
@@ -515,6 +541,7 @@ export function startServer(conn?: Connection): void {
 
   /** ferrule/layout: the layout table text for the type at a position (or every type of the file). */
   connection.onRequest("ferrule/layout", async (p: { textDocument: { uri: string }; position?: { line: number; character: number } }, token) => {
+    check("ferrule/layout", p);
     const e = await current(token);
     const file = toFile(p.textDocument.uri);
     if (!file) return { text: "Not a file." };
@@ -547,6 +574,7 @@ export function startServer(conn?: Connection): void {
   connection.onRequest("ferrule/stats", async () => ({ ...stats, files: engine?.ws.files().length ?? 0, findings: engine?.findings.length ?? 0, memory: process.memoryUsage() }));
 
   connection.onShutdown(() => {
+    shutDown = true;
     if (timer) clearTimeout(timer);
     if (idleTimer) clearTimeout(idleTimer);
     engine?.dispose();

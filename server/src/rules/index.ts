@@ -13,15 +13,22 @@ import { ownershipFamily } from "./ownership.js";
 
 export const INTERNAL: RuleMeta = {
   id: "internal-error",
-  severity: "warning",
+  severity: "error",
   summary: "ferrule itself failed while checking (a rule threw, or a file could not be read).",
-  why: "The rest of the results stand; please report the message.",
+  why: "The rest of the results stand, but the run is incomplete, so it fails (CI fails closed rather than passing with a check missing); please report the message.",
 };
 export const FILE_SKIPPED: RuleMeta = {
   id: "file-skipped",
   severity: "info",
   summary: "A file was not analysed (too large, unreadable, or outside the workspace).",
   why: "Findings that involve it are missing from this run.",
+};
+
+export const FILE_ENCODING: RuleMeta = {
+  id: "file-encoding",
+  severity: "info",
+  summary: "A source file was not plain UTF-8 (UTF-16 with a byte order mark, or undecodable bytes) and was decoded as noted.",
+  why: "Positions in a file with undecodable bytes may be off; compilers may read such a file differently.",
 };
 
 export const UNKNOWN_MACRO: RuleMeta = {
@@ -48,19 +55,30 @@ export function registerFamily(f: RuleFamily): void {
 }
 
 export function allRules(): RuleMeta[] {
-  return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON];
+  return [...FAMILIES.flatMap((f) => f.rules), INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON];
 }
 
 function failed(what: string, e: unknown, file: string): Finding {
   // anything may be thrown (undefined, null, a string): never let the message itself throw
   const err = { message: e instanceof Error ? e.message : String(e) };
+  const at = firstFrame(e);
   return {
     rule: INTERNAL.id,
-    severity: "warning",
-    message: `${what} failed: ${err.message} — its findings are missing from this run; the other families' results stand`,
+    severity: "error",
+    message: `${what} failed: ${err.message}${at ? ` (at ${at})` : ""} — its findings are missing from this run; the other families' results stand`,
     range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
     related: [],
   };
+}
+
+/** The first stack frame of a thrown error (`file:line:col`, bundle-relative), for the report. */
+function firstFrame(e: unknown): string | undefined {
+  if (!(e instanceof Error) || typeof e.stack !== "string") return undefined;
+  const line = e.stack.split("\n").find((l) => /^\s+at /.test(l));
+  const m = line?.match(/\(?([^()\s]+:\d+:\d+)\)?\s*$/);
+  if (!m) return undefined;
+  const parts = m[1]!.split(/[\\/]/);
+  return parts.slice(-2).join("/");
 }
 
 /** A family's findings on one model; with `gathered`, its workspace checks only gather into it

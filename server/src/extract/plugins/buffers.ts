@@ -626,7 +626,7 @@ cFileExtractors.file.push((root, facts) => {
     extractCFile(root, facts);
     collectCHints(facts, nullabilityNames(root));
   } catch (e) {
-    facts.notices.push({ rule: "internal-error", severity: "warning", message: `ferrule could not read call sites in ${facts.file}: ${(e as Error).message}`, range: { file: facts.file, line: 0, col: 0, endLine: 0, endCol: 0 } });
+    facts.notices.push({ rule: "internal-error", severity: "error", message: `ferrule could not read call sites in ${facts.file}: ${(e as Error).message}`, range: { file: facts.file, line: 0, col: 0, endLine: 0, endCol: 0 } });
   }
 });
 
@@ -927,7 +927,7 @@ rustExtractors.fnBody.push((fnNode, fn, facts) => {
   try {
     extractRustBody(fnNode, fn, facts);
   } catch (e) {
-    facts.notices.push({ rule: "internal-error", severity: "warning", message: `ferrule could not read the body of \`${fn.name}\` in ${facts.file}: ${(e as Error).message}`, range: fn.nameRange });
+    facts.notices.push({ rule: "internal-error", severity: "error", message: `ferrule could not read the body of \`${fn.name}\` in ${facts.file}: ${(e as Error).message}`, range: fn.nameRange });
   }
 });
 
