@@ -19,6 +19,11 @@ export interface FerruleConfig {
   severity: Record<string, Severity | "off">;
   /** Per-family settings (e.g. port-declaration patterns), passed to the model. */
   families: Record<string, unknown>;
+  /** Cargo features the build enables besides each package's defaults (`name` for every package
+   * that has it, `package/name` for one). */
+  features: string[];
+  /** Preprocessor defines the build passes to every C/C++ file (`NAME = "value"`). */
+  defines: Record<string, string>;
 }
 
 export const DEFAULTS: FerruleConfig = {
@@ -29,6 +34,8 @@ export const DEFAULTS: FerruleConfig = {
   stripMacros: [],
   severity: {},
   families: {},
+  features: [],
+  defines: {},
 };
 
 export class ConfigError extends Error {
@@ -77,6 +84,27 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
         if (typeof v !== "number" && typeof v !== "bigint") throw new ConfigError(file, k, "expected a number");
         cfg.maxFileBytes = Number(v);
         break;
+      case "features": {
+        const list = strList(v, file, k);
+        for (const f of list) {
+          if (!/^[A-Za-z0-9_][A-Za-z0-9_+.-]*(\/[A-Za-z0-9_][A-Za-z0-9_+.-]*)?$/.test(f)) throw new ConfigError(file, k, `\`${f}\` is not a Cargo feature name (expected \`name\` or \`package/name\`)`);
+        }
+        cfg.features = list;
+        break;
+      }
+      case "defines": {
+        if (typeof v !== "object" || v === null || Array.isArray(v)) throw new ConfigError(file, k, "expected a table of NAME = \"value\"");
+        const out: Record<string, string> = {};
+        for (const [name, val] of Object.entries(v as Record<string, unknown>)) {
+          if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(name)) throw new ConfigError(file, `${k}.${name}`, "not a C macro name");
+          if (typeof val === "string") out[name] = val;
+          else if (typeof val === "number" || typeof val === "bigint") out[name] = String(val);
+          else if (typeof val === "boolean") out[name] = val ? "1" : "0";
+          else throw new ConfigError(file, `${k}.${name}`, "expected a string, a number or a boolean");
+        }
+        cfg.defines = out;
+        break;
+      }
       case "rules":
       case "severity": {
         if (typeof v !== "object" || v === null || Array.isArray(v)) throw new ConfigError(file, k, "expected a table of rule = severity");
