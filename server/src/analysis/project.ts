@@ -396,6 +396,12 @@ export function discoverProject(root: string, sources: readonly string[], modsOf
     for (const [d, kind] of scan.cbuild) if (within(d, file) && within(root, d) && (!best || d.length > best[0].length)) best = [d, kind];
     return best;
   };
+  /** The outermost folder of one C build (of that kind) enclosing the file: its product. */
+  const outerBuild = (file: string, kind: string): string => {
+    let best = "";
+    for (const [d, k] of scan.cbuild) if (k === kind && within(d, file) && within(root, d) && (!best || d.length < best.length)) best = d;
+    return best;
+  };
   for (const f of sources) {
     if (f.endsWith(".rs")) {
       if (files.has(f)) continue;
@@ -409,8 +415,11 @@ export function discoverProject(root: string, sources: readonly string[], modsOf
     const p = pkgOf(f);
     const b = cbuildOf(f);
     let unit: string;
-    if (p?.buildScript && (!b || b[0] !== p.dir || (DRIVERS[b[1]] ?? []).some((d) => p.deps.some((x) => x.build && (x.key === d || x.pkgName === d))))) unit = "lib"; // compiled by the package's build script
-    else if (b) unit = `c:${b[0]}`;
+    // compiled by the package's build script: C sources of the package's folder, unless a C build
+    // of their own (inside the package) builds them and the build script does not drive it
+    const driven = !!b && (DRIVERS[b[1]] ?? []).some((d) => p?.deps.some((x) => x.build && (x.key === d || x.pkgName === d)));
+    if (p?.buildScript && (!b || !within(p.dir, b[0]) || driven)) unit = "lib";
+    else if (b) unit = `c:${outerBuild(f, b[1])}`;
     else if (p) unit = `c:${p.dir}`;
     else unit = "lib";
     const e = compiled.get(f);

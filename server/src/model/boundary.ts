@@ -177,6 +177,12 @@ export class Model {
     return archVariant(rel);
   }
 
+  /** Whether two items' files share a link unit. */
+  shareUnit(a: string, b: string): boolean {
+    const ub = this.unitsOf(b);
+    return this.unitsOf(a).some((u) => ub.includes(u));
+  }
+
   /**
    * Whether two definitions can end up in one linked program: they share a link unit, are not
    * variants for two architectures, their conditions can hold together, and they are not two

@@ -70,7 +70,8 @@ function oneSided(model: Model, e: FnDecl): "runtime" | "generated" | "unreached
 function outsideImport(model: Model, i: FnDecl): boolean {
   const built = model.config.project?.builtLibs;
   if (i.linkLib && SYSTEM_LIBS.has(i.linkLib) && !built?.has(i.linkLib)) return true;
-  if (!i.block) return false;
+  // (read from the build: without a Cargo package around the file, every import is expected in the tree)
+  if (!i.block || !model.fileUnit(i.file)?.crate) return false;
   const facts = model.files.get(i.file);
   for (const s of facts?.fns ?? []) {
     if (s === i || s.block !== i.block) continue;
@@ -172,6 +173,9 @@ export const symbolsFamily: RuleFamily = {
           }
           continue;
         }
+        // (a C declaration of another program — a C build of its own, an example — or one a C
+        // definition already provides does not name this Rust function)
+        if (!e.noMangle && !imports.length && (defs.length || !protos.some((p) => model.shareUnit(p.file, e.file)))) continue;
         const other = protos[0] ?? defs[0];
         const rel = other ? [{ range: other.nameRange, message: `declared for C here` }] : [];
         if (!e.noMangle && e.isExtern && e.cfgExport?.length) {
