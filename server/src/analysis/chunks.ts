@@ -9,6 +9,7 @@
 // of its files only, so memory holds one chunk's facts at a time.
 
 import type { IncludeIndex } from "../model/includes.js";
+import type { ProjectInfo } from "../model/project.js";
 import { Model, type Side } from "../model/boundary.js";
 import { FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
 import { suppressionsOf, type Suppression } from "./suppress.js";
@@ -105,6 +106,8 @@ export interface ChunkContext {
   sides: Record<Side, boolean>;
   /** Also compute each finding's fixes (`ferrule check --show-fixes`). */
   withFixes: boolean;
+  /** The project model (analysis/project.ts), the same for every chunk. */
+  project?: ProjectInfo;
 }
 
 export interface ChunkResult {
@@ -119,7 +122,7 @@ export interface ChunkResult {
  * workspace checks (rules/api.ts WorkspaceCheck) gather into `gathered`. */
 export function checkChunk(chunk: readonly PackedFile[], ctx: ChunkContext, gathered: Map<string, GatheredItem[]>): ChunkResult {
   const facts = chunk.map((b) => unpackFacts(b));
-  const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex: ctx.includeIndex });
+  const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex: ctx.includeIndex, project: ctx.project });
   const findings = finishFindings(runRules(model, FAMILIES, gathered), model, ctx.config);
   return { findings, suppressions: suppressionsOf(model), fixes: ctx.withFixes ? findings.map((f) => fixesFor(f, model)) : undefined };
 }

@@ -20,6 +20,11 @@ export interface FerruleConfig {
   severity: Record<string, Severity | "off">;
   /** Per-family settings (e.g. port-declaration patterns), passed to the model. */
   families: Record<string, unknown>;
+  /** Cargo features the build enables besides each package's defaults (`name` for every package
+   * that has it, `package/name` for one). */
+  features: string[];
+  /** Preprocessor defines the build passes to every C/C++ file (`NAME = "value"`). */
+  defines: Record<string, string>;
 }
 
 export const DEFAULTS: FerruleConfig = {
@@ -30,6 +35,8 @@ export const DEFAULTS: FerruleConfig = {
   stripMacros: [],
   severity: {},
   families: {},
+  features: [],
+  defines: {},
 };
 
 export class ConfigError extends Error {
@@ -40,7 +47,7 @@ export class ConfigError extends Error {
 
 const SEVERITIES = ["error", "warning", "info", "hint", "off"];
 /** Top-level settings, and the tables handed to rule families (`[ports]`, `[layout]`). */
-const TOP_KEYS = ["targets", "include_paths", "exclude", "strip_macros", "max_file_bytes", "rules"];
+const TOP_KEYS = ["targets", "include_paths", "exclude", "strip_macros", "max_file_bytes", "features", "defines", "rules"];
 const FAMILY_TABLES = ["ports", "layout"];
 
 /** ` — did you mean \`x\`?` for a close name (edit distance ≤ 2), else "". */
@@ -104,6 +111,27 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
         const n = typeof v === "bigint" ? Number(v) : v;
         if (typeof n !== "number" || !Number.isInteger(n) || n < 1) throw new ConfigError(file, k, `expected a whole number of bytes of at least 1 (got ${typeof v === "string" ? JSON.stringify(v) : String(v)})`);
         cfg.maxFileBytes = n;
+        break;
+      }
+      case "features": {
+        const list = strList(v, file, k);
+        for (const f of list) {
+          if (!/^[A-Za-z0-9_][A-Za-z0-9_+.-]*(\/[A-Za-z0-9_][A-Za-z0-9_+.-]*)?$/.test(f)) throw new ConfigError(file, k, `\`${f}\` is not a Cargo feature name (expected \`name\` or \`package/name\`)`);
+        }
+        cfg.features = list;
+        break;
+      }
+      case "defines": {
+        if (typeof v !== "object" || v === null || Array.isArray(v)) throw new ConfigError(file, k, "expected a table of NAME = \"value\"");
+        const out: Record<string, string> = {};
+        for (const [name, val] of Object.entries(v as Record<string, unknown>)) {
+          if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(name)) throw new ConfigError(file, `${k}.${name}`, "not a C macro name");
+          if (typeof val === "string") out[name] = val;
+          else if (typeof val === "number" || typeof val === "bigint") out[name] = String(val);
+          else if (typeof val === "boolean") out[name] = val ? "1" : "0";
+          else throw new ConfigError(file, `${k}.${name}`, "expected a string, a number or a boolean");
+        }
+        cfg.defines = out;
         break;
       }
       case "rules":

@@ -8,7 +8,7 @@
 
 import * as v8 from "node:v8";
 import * as zlib from "node:zlib";
-import type { FileFacts, Lang } from "../model/types.js";
+import type { FileFacts, Lang, ModDecl } from "../model/types.js";
 import { keysOf } from "./keys.js";
 
 export interface PackedFile {
@@ -21,6 +21,8 @@ export interface PackedFile {
   use: string[];
   /** The `#include "…"` paths as written (system includes left out). */
   includes: string[];
+  /** Rust: the module declarations (for the project's module tree, analysis/project.ts). */
+  mods?: ModDecl[];
   /** The facts, compressed (made on a worker thread, moved to the main thread)… */
   packed?: Uint8Array;
   /** …or as they are (read in this thread: a workspace too small for worker threads, where
@@ -37,6 +39,7 @@ export function packFacts(facts: FileFacts, hash: string, compress = true): Pack
     decl: [...k.decl],
     use: [...k.use],
     includes: facts.includes.filter((i) => !i.system).map((i) => i.path),
+    ...(facts.mods ? { mods: facts.mods } : {}),
     // a buffer of its own, so it can be transferred between threads
     ...(compress ? { packed: new Uint8Array(zlib.deflateRawSync(v8.serialize(facts), { level: 1 })) } : { facts }),
   };

@@ -14,6 +14,7 @@ import { formatJson, formatSarif, formatText, toJsonFinding, type JsonFinding } 
 import { formatLayoutText, layoutTypes } from "./layout-cmd.js";
 import { makeBaseline, newSince, readBaseline } from "./baseline.js";
 import { readSmallRegularFile, UnsafeFileError } from "../analysis/textio.js";
+import { findProjectRoot } from "../analysis/project.js";
 
 export const VERSION = "0.1.0";
 
@@ -198,7 +199,10 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   // `check` reads the workspace in chunks of related files (analysis/chunks.ts): the findings are
   // those of one model of everything, with one chunk's facts in memory at a time.
   const chunkFiles = Number(process.env.FERRULE_CHUNK_FILES) || undefined;
-  const res = await ws.checkChunked(roots, { script: bundleScript(), chunkFiles, withFixes: o.showFixes, onProgress: progress, onPhase: phase });
+  // the project root (.ferrule.toml, Cargo workspace, compile_commands.json): a sub-folder is
+  // read with its project, and only its own findings are reported
+  const projectRoot = roots.length === 1 ? findProjectRoot(roots[0]!) : undefined;
+  const res = await ws.checkChunked(roots, { script: bundleScript(), chunkFiles, withFixes: o.showFixes, onProgress: progress, onPhase: phase, root: projectRoot });
   if (progress) io.stderr("\r\x1b[K");
   phase(`check (${res.files} files in ${res.chunks} chunk(s), largest ${res.largestChunk})`);
   let json: JsonFinding[] = res.findings.map((f) => {

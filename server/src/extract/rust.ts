@@ -4,10 +4,11 @@
 
 import type { Node, Tree } from "../parse/parser.js";
 import { parseText } from "../parse/parser.js";
-import type { AbiType, CachedItem, Field, ItemCache, FileFacts, FnDecl, MacroItem, Param, SourceAssert, TypeDecl } from "../model/types.js";
+import type { AbiType, CachedItem, Field, ItemCache, FileFacts, FnDecl, MacroItem, ModDecl, Param, SourceAssert, TypeDecl } from "../model/types.js";
 import type { ScalarKind } from "../model/targets.js";
 import { docAbove, emptyFacts, evalConst, rangeOf, walk } from "./common.js";
 import { rustExtractors } from "./hooks.js";
+import { allOf, canHoldIn, parseCfg, parseCfgAttr, type Cond } from "../model/conditions.js";
 
 const RUST_PRIMS: Record<string, ScalarKind> = {
   i8: "i8", u8: "u8", i16: "i16", u16: "u16", i32: "i32", u32: "u32", i64: "i64", u64: "u64",
@@ -145,10 +146,40 @@ interface AttrInfo {
   repr: string[];
   derives: string[];
   cfgTest: boolean;
+  /** The `#[cfg(…)]` predicates read. */
+  cfgs: Cond[];
+  /** `#[cfg_attr(PRED, no_mangle / export_name = …)]`. */
+  cfgExport: { cond: Cond; name?: string }[];
+  /** `#[link(name = "…")]`. */
+  link?: string;
+  /** `#[path = "…"]`. */
+  path?: string;
+  /** A binding attribute of another runtime (`#[wasm_bindgen]`): an extern block under it is not a C import. */
+  foreignBinding?: string;
+}
+
+/** Attributes that bind an extern block to another runtime than C (common practice: the
+ * WebAssembly/JavaScript binding generator's attribute). */
+const FOREIGN_BINDINGS = new Set(["wasm_bindgen", "wasm_bindgen::prelude::wasm_bindgen"]);
+
+/** Whether a cfg predicate can only hold when compiling tests (`test` is never set in the shipped
+ * build; every other option is left open here, the model decides them per target). */
+function onlyInTests(c: Cond): boolean {
+  const names = new Set<string>();
+  const visit = (x: Cond, d: number): void => {
+    if (d > 64) return;
+    if (x.k === "is") names.add(x.name);
+    else if (x.k === "not") visit(x.of, d + 1);
+    else x.of.forEach((y) => visit(y, d + 1));
+  };
+  visit(c, 0);
+  if (!names.has("test")) return false;
+  names.delete("test");
+  return !canHoldIn([c], { set: new Map(), free: names });
 }
 
 function attrsBefore(n: Node): AttrInfo {
-  const info: AttrInfo = { texts: [], noMangle: false, repr: [], derives: [], cfgTest: false };
+  const info: AttrInfo = { texts: [], noMangle: false, repr: [], derives: [], cfgTest: false, cfgs: [], cfgExport: [] };
   let p = n.previousNamedSibling;
   while (p && (p.type === "attribute_item" || p.type === "line_comment" || p.type === "block_comment")) {
     if (p.type === "attribute_item") {
@@ -190,7 +221,35 @@ function readAttr(a: Node, info: AttrInfo): void {
     }
   } else if (name === "derive" && args) {
     for (const c of args.namedChildren) if (c.type === "identifier") info.derives.push(c.text);
-  } else if (name === "cfg" && args && /\btest\b/.test(args.text)) info.cfgTest = true;
+  } else if (name === "cfg" && args) {
+    const c = parseCfg(args.text.slice(1, -1));
+    if (c) {
+      info.cfgs.push(c);
+      if (onlyInTests(c)) info.cfgTest = true;
+    }
+  } else if (name === "cfg_attr" && args) {
+    const ca = parseCfgAttr(args.text.slice(1, -1));
+    if (ca) {
+      for (const at of ca.attrs) {
+        const t = at.replace(/^unsafe\s*\(\s*([\s\S]*)\)$/, "$1").trim();
+        if (t === "no_mangle") info.cfgExport.push({ cond: ca.cond });
+        else if (/^export_name\s*=/.test(t)) {
+          const m = /^export_name\s*=\s*"([^"]*)"$/.exec(t);
+          info.cfgExport.push({ cond: ca.cond, name: m?.[1] });
+        }
+      }
+    }
+  } else if (name === "link" && args) {
+    // #[link(name = "m", kind = "…")]: the argument text is opaque to the grammar
+    const m = /\bname\s*=\s*"([^"]*)"/.exec(args.text);
+    if (m) info.link = m[1];
+  } else if (name === "path" && strVal) info.path = strVal;
+  else if (name === "export_name" && value?.type === "macro_invocation") {
+    // #[export_name = prefix!(name)]: exported under a name a macro builds; the function's own
+    // name stands in for it (ferrule expands no macro)
+    info.noMangle = true;
+  }
+  if (FOREIGN_BINDINGS.has(name)) info.foreignBinding = name;
 }
 
 function reprOf(list: string[]): TypeDecl["repr"] {
@@ -345,6 +404,19 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     cache.order = [];
   }
 
+  // the inline modules being read (for `mod x;` inside `mod a { … }`) and their conditions
+  const modStack: string[] = [];
+  const condStack: (Cond | undefined)[] = [];
+  // `#![cfg(…)]` at the top of the file: the whole file is conditional
+  for (const n of rootKids) {
+    if (n.type !== "inner_attribute_item") continue;
+    const a = n.namedChildren.find((c) => c.type === "attribute");
+    if (a?.namedChild(0)?.text !== "cfg") continue;
+    const args = a.childForFieldName("arguments");
+    const c = args ? parseCfg(args.text.slice(1, -1)) : undefined;
+    if (c) (facts.cfgScopes ??= []).push({ line: 0, endLine: root.endPosition.row, cond: c });
+  }
+
   const visitItems = (container: Node, kids = container.namedChildren) => {
     for (let i = 0; i < kids.length; i++) {
       const n = kids[i]!;
@@ -381,7 +453,23 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
         case "mod_item": {
           const a = attrsBefore(n);
           const body = n.childForFieldName("body");
-          if (body && !a.cfgTest) visitItems(body);
+          const name = n.childForFieldName("name")?.text;
+          if (a.cfgTest || !name) break;
+          const cond = allOf(a.cfgs);
+          if (body) {
+            if (cond) (facts.cfgScopes ??= []).push({ line: n.startPosition.row, endLine: n.endPosition.row, cond });
+            modStack.push(name);
+            condStack.push(cond);
+            visitItems(body);
+            modStack.pop();
+            condStack.pop();
+          } else {
+            const decl: ModDecl = { name, inline: [...modStack], line: n.startPosition.row };
+            if (a.path) decl.path = a.path;
+            const c = allOf([...condStack, cond]);
+            if (c) decl.cond = c;
+            (facts.mods ??= []).push(decl);
+          }
           break;
         }
         case "impl_item": {
@@ -395,7 +483,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
         case "foreign_mod_item": {
           const abi = abiOf(n) ?? "C";
           const body = n.childForFieldName("body");
-          if (body) readForeign(body, abi);
+          if (body) readForeign(body, abi, attrsBefore(n), n.startPosition.row);
           break;
         }
         case "ERROR": {
@@ -406,7 +494,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           const block = next?.type === "expression_statement" ? next.namedChild(0) : next?.type === "block" ? next : null;
           if (ext && block?.type === "block") {
             const s = ext.namedChildren.find((c) => c.type === "string_literal");
-            readForeign(block, s ? s.text.replace(/"/g, "") : "C");
+            readForeign(block, s ? s.text.replace(/"/g, "") : "C", attrsBefore(n), n.startPosition.row);
             i++;
           } else {
             visitItems(n);
@@ -422,7 +510,11 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           const name = n.childForFieldName("name");
           if (name) {
             const generic = !!n.childForFieldName("type_parameters");
+            const ta = attrsBefore(n);
+            if (ta.cfgTest) break;
+            const tc = allOf(ta.cfgs);
             facts.types.push({
+              ...(tc ? { cfg: tc } : {}),
               id: `${file}#${name.text}#${n.startPosition.row}`, lang: "rust", kind: "alias", name: name.text,
               fields: [], enumerators: [], aliasOf: rustType(n.childForFieldName("type"), ctx), repr: {},
               range: rangeOf(file, n), nameRange: rangeOf(file, name), file, doc: docAbove(n), attrs: [], generic,
@@ -494,12 +586,15 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     const { hasSelf, ...fn } = signature(n, nameNode, "export", a.exportName ?? nameNode.text, abi ?? "Rust", a) as FnDecl & { hasSelf: boolean };
     fn.noMangle = exported;
     fn.isExtern = abi !== undefined;
+    const cond = allOf(a.cfgs);
+    if (cond) fn.cfg = cond;
+    if (a.cfgExport.length && !exported) fn.cfgExport = a.cfgExport;
     fn.isPub = n.namedChildren.some((c) => c.type === "visibility_modifier");
     fn.generic = !!n.childForFieldName("type_parameters") || hasSelf;
     // Only functions that take part in the C ABI are boundary items; others are kept (not
     // exported) so body rules can follow helper calls inside the crate. (Known before the body is
     // read: body extractors may read less of a helper.)
-    if (!exported && abi === undefined) (fn as FnDecl & { internal?: boolean }).internal = true;
+    if (!exported && abi === undefined && !a.cfgExport.length) (fn as FnDecl & { internal?: boolean }).internal = true;
     if (n.childForFieldName("body")) {
       fn.body = {};
       for (const x of rustExtractors.fnBody) x(n, fn, facts);
@@ -507,14 +602,21 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
     facts.fns.push(fn);
   };
 
-  const readForeign = (body: Node, abi: string) => {
+  const readForeign = (body: Node, abi: string, blockAttrs: AttrInfo, row: number) => {
+    // an extern block under another runtime's binding attribute imports from that runtime, not C
+    if (blockAttrs.cfgTest || blockAttrs.foreignBinding) return;
     for (const item of body.namedChildren) {
       if (item.type !== "function_signature_item") continue;
       const a = attrsBefore(item);
+      if (a.cfgTest || a.foreignBinding) continue;
       const nameNode = item.childForFieldName("name");
       if (!nameNode) continue;
       const { hasSelf: _self, ...fn } = signature(item, nameNode, "import", a.linkName ?? nameNode.text, abi, a);
       fn.isExtern = true;
+      fn.block = `${file}#${row}`;
+      if (blockAttrs.link) fn.linkLib = blockAttrs.link;
+      const cond = allOf([...blockAttrs.cfgs, ...a.cfgs]);
+      if (cond) fn.cfg = cond;
       facts.fns.push(fn);
     }
   };
@@ -542,6 +644,8 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
       generic: !!n.childForFieldName("type_parameters"),
       derives: a.derives,
     };
+    const tcond = allOf(a.cfgs);
+    if (tcond) decl.cfg = tcond;
     if (kind === "enum") {
       let next = 0;
       let dataCarrying = false;
@@ -563,7 +667,12 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           if (f.type !== "field_declaration") continue;
           const fname = f.childForFieldName("name")?.text ?? "";
           const ft = f.childForFieldName("type");
-          fields.push({ name: fname, type: rustType(ft, ctx), text: ft?.text ?? "", range: rangeOf(file, f) });
+          const fa = attrsBefore(f);
+          if (fa.cfgTest) continue;
+          const field: Field = { name: fname, type: rustType(ft, ctx), text: ft?.text ?? "", range: rangeOf(file, f) };
+          const fc = allOf(fa.cfgs);
+          if (fc) field.cfg = fc;
+          fields.push(field);
         }
       } else if (body.type === "ordered_field_declaration_list") {
         let i = 0;

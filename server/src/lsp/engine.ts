@@ -17,6 +17,7 @@ import * as path from "node:path";
 import { createHash } from "node:crypto";
 import { Workspace, listSources } from "../analysis/workspace.js";
 import type { FerruleConfig } from "../analysis/config.js";
+import { findProjectRoot } from "../analysis/project.js";
 import type { Finding } from "../rules/api.js";
 import { workspaceCheckIds, type GatheredItem } from "../rules/index.js";
 import { concludeFinished } from "../analysis/finish.js";
@@ -184,6 +185,13 @@ export class Engine {
   needFull = true;
   roots: string[] = [];
   lastContext = 0;
+  private seenProject = -1;
+
+  /** A build file changed on disk (Cargo.toml, compile_commands.json): read the project again. */
+  buildFileChanged(): void {
+    this.ws.invalidateProject();
+    this.needFull = true;
+  }
 
   constructor(ws: Workspace) {
     this.ws = ws;
@@ -192,6 +200,8 @@ export class Engine {
   /** Builds the index from disk (open documents keep their editor text). */
   scan(roots: string[], onProgress?: (done: number, total: number) => void): number {
     this.roots = roots;
+    // the same project model as the CLI (analysis/project.ts): read from the project root
+    this.ws.projectRoot ??= roots.length ? findProjectRoot(roots[0]!) : undefined;
     const walk = listSources(roots, this.ws.config.exclude);
     this.ws.walkNotices.length = 0;
     this.ws.walkNotices.push(...walk.notices);
@@ -390,6 +400,12 @@ export class Engine {
     }
     this.dirty.clear();
 
+    // a changed project model (a module declaration, a file added or removed, a build file)
+    // can change findings anywhere: check everything
+    if (this.ws.projectVersion !== this.seenProject) {
+      this.seenProject = this.ws.projectVersion;
+      this.needFull = true;
+    }
     const full = forceFull || this.needFull;
     if (!full && changed.length === 0) {
       return { findings: this.findings, affected: new Set(), changed, scope: "scoped", ms: performance.now() - t0 };

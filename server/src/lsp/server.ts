@@ -302,7 +302,7 @@ export function startServer(conn?: Connection): void {
       engine = new Engine(new Workspace(configure()));
       if (caps.workspace?.didChangeWatchedFiles?.dynamicRegistration) {
         void connection.client.register(DidChangeWatchedFilesNotification.type, {
-          watchers: [{ globPattern: "**/*.{rs,c,h,cc,cpp,cxx,hpp,hh,hxx}" }, { globPattern: `**/${CONFIG_FILE}` }],
+          watchers: [{ globPattern: "**/*.{rs,c,h,cc,cpp,cxx,hpp,hh,hxx}" }, { globPattern: `**/${CONFIG_FILE}` }, { globPattern: "**/{Cargo.toml,compile_commands.json}" }],
         });
       }
       // Documents opened before we were ready
@@ -377,6 +377,10 @@ export function startServer(conn?: Connection): void {
       if (!file) continue;
       if (path.basename(file) === CONFIG_FILE) {
         reconfigure = true;
+        continue;
+      }
+      if (path.basename(file) === "Cargo.toml" || path.basename(file) === "compile_commands.json") {
+        engine.buildFileChanged();
         continue;
       }
       engine.diskChanged(file, c.type === FileChangeType.Deleted ? "deleted" : c.type === FileChangeType.Created ? "created" : "changed");

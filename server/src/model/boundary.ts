@@ -4,6 +4,8 @@
 import type { AbiType, FileFacts, FnDecl, IncludeRef, MacroItem, TypeDecl } from "./types.js";
 import { ALL_TRIPLES, type Triple } from "./targets.js";
 import { IncludeIndex } from "./includes.js";
+import { allOf, canHold, envsFor, type Cond, type CondEnv } from "./conditions.js";
+import { archVariant, type FileUnit, type ProjectInfo } from "./project.js";
 
 export type Side = "rust" | "c";
 
@@ -18,6 +20,9 @@ export interface ModelConfig {
   workspaceSides?: Record<Side, boolean>;
   /** For a model of part of a workspace: resolve includes against the whole workspace. */
   includeIndex?: IncludeIndex;
+  /** The project as its build sees it (analysis/project.ts): link units, features, file
+   * conditions. Without it every file is in one link unit and features are unknown. */
+  project?: ProjectInfo;
 }
 
 export const DEFAULT_CONFIG: ModelConfig = { targets: [...ALL_TRIPLES], includePaths: [], families: {} };
@@ -42,10 +47,19 @@ export class Model {
   /** Where each `#include "…"` of the workspace resolved (the facts themselves stay untouched). */
   private readonly includeTargets = new Map<IncludeRef, string>();
 
+  /** Each item's condition (its own `#[cfg]`, its inline modules' and the module tree's). */
+  private readonly conds = new Map<object, Cond>();
+  private readonly envCache = new Map<string, CondEnv[]>();
+  private readonly programs = new Set<string>();
+
   constructor(facts: Iterable<FileFacts>, config: ModelConfig = DEFAULT_CONFIG) {
     this.files = new Map();
     this.config = config;
-    for (const f of facts) this.files.set(f.file, f);
+    for (const f of facts) this.files.set(f.file, f.lang === "rust" ? this.built(f) : f);
+    for (const f of this.files.values()) {
+      // a C/C++ file that defines `main` is a program of its own (its own link unit)
+      if (f.lang !== "rust" && f.fns.some((fn) => fn.role === "def" && fn.name === "main" && !fn.isStatic)) this.programs.add(f.file);
+    }
     for (const f of this.files.values()) {
       const side: Side = f.lang === "rust" ? "rust" : "c";
       for (const fn of f.fns) {
@@ -86,6 +100,116 @@ export class Model {
         }
       }
     }
+  }
+
+  /**
+   * A Rust file's facts as the build compiles them: items whose condition holds on no configured
+   * target (with the package's features) are left out, and `#[cfg_attr(PRED, no_mangle)]` /
+   * `export_name` applies where PRED can hold. The facts themselves stay untouched (copies).
+   */
+  private built(f: FileFacts): FileFacts {
+    const unit = this.config.project?.files.get(f.file);
+    const scopes = f.cfgScopes ?? [];
+    const needs = unit?.cond || scopes.length || f.fns.some((x) => x.cfg || x.cfgExport) || f.types.some((t) => t.cfg || t.fields.some((x) => x.cfg));
+    if (!needs) return f;
+    const envs = this.envsOf(f.file);
+    const condAt = (line: number, own: Cond | undefined): Cond | undefined =>
+      allOf([unit?.cond, ...scopes.filter((s) => s.line <= line && line <= s.endLine).map((s) => s.cond), own]);
+    const fns: FnDecl[] = [];
+    for (const fn of f.fns) {
+      const c = condAt(fn.range.line, fn.cfg);
+      if (c && !canHold([c], envs)) continue;
+      let out = fn;
+      if (fn.cfgExport && !fn.noMangle) {
+        const e = fn.cfgExport.find((x) => canHold([c, x.cond], envs));
+        if (e) out = { ...fn, noMangle: true, symbol: e.name ?? fn.name };
+      }
+      if (c) this.conds.set(out, c);
+      fns.push(out);
+    }
+    const types: TypeDecl[] = [];
+    for (const t of f.types) {
+      const c = condAt(t.range.line, t.cfg);
+      if (c && !canHold([c], envs)) continue;
+      let out = t;
+      if (t.fields.some((x) => x.cfg)) {
+        const fields = t.fields.filter((x) => !x.cfg || canHold([c, x.cfg], envs));
+        if (fields.length !== t.fields.length) out = { ...t, fields };
+      }
+      if (c) this.conds.set(out, c);
+      types.push(out);
+    }
+    return { ...f, fns, types };
+  }
+
+  /** The build environments a file is compiled in: each configured target, with its package's
+   * features (unknown features: any). */
+  envsOf(file: string): CondEnv[] {
+    let e = this.envCache.get(file);
+    if (!e) {
+      const unit = this.config.project?.files.get(file);
+      e = envsFor(this.config.targets, { features: unit?.features, optional: unit?.optional });
+      this.envCache.set(file, e);
+    }
+    return e;
+  }
+
+  /** An item's build condition (undefined: always compiled). */
+  condOf(item: FnDecl | TypeDecl): Cond | undefined {
+    return this.conds.get(item);
+  }
+
+  /** What the project knows of a file (undefined without build files). */
+  fileUnit(file: string): FileUnit | undefined {
+    return this.config.project?.files.get(file);
+  }
+
+  /** The link units a file is compiled into (see model/project.ts). */
+  unitsOf(file: string): string[] {
+    if (this.programs.has(file)) return [`program:${file}`];
+    return this.config.project?.files.get(file)?.units ?? ["default"];
+  }
+
+  /** The architecture variant a file's folder names (`src/arm/cpu.c`), relative to the project root. */
+  variantOf(file: string): string | undefined {
+    const root = this.config.project?.root;
+    const rel = root && file.startsWith(root) ? file.slice(root.length) : file.split(/[\\/]/).slice(-4).join("/");
+    return archVariant(rel);
+  }
+
+  /** Whether two items' files share a link unit. */
+  shareUnit(a: string, b: string): boolean {
+    const ub = this.unitsOf(b);
+    return this.unitsOf(a).some((u) => ub.includes(u));
+  }
+
+  /**
+   * Whether two definitions can end up in one linked program: they share a link unit, are not
+   * variants for two architectures, their conditions can hold together, and they are not two
+   * definitions in one C/C++ file (which a compiler accepts only in exclusive `#if` branches).
+   */
+  mayLinkTogether(a: FnDecl, b: FnDecl): boolean {
+    const ua = this.unitsOf(a.file);
+    const ub = this.unitsOf(b.file);
+    if (!ua.some((u) => ub.includes(u))) return false;
+    const va = this.variantOf(a.file);
+    const vb = this.variantOf(b.file);
+    if (va && vb && va !== vb) return false;
+    if (a.file === b.file && a.lang !== "rust" && b.lang !== "rust") return false;
+    const ca = this.condOf(a);
+    const cb = this.condOf(b);
+    if (ca || cb) {
+      const pa = this.config.project?.files.get(a.file);
+      const pb = this.config.project?.files.get(b.file);
+      const ea = this.envsOf(a.file);
+      const eb = this.envsOf(b.file);
+      // one package (or both of unknown packages): one set of features decides both conditions;
+      // else each side with its own features, on the same target
+      const joint = pa?.crate === pb?.crate;
+      const together = ea.some((e, i) => joint ? canHold([ca, cb], [e]) : canHold([ca], [e]) && !!eb[i] && canHold([cb], [eb[i]!]));
+      if (!together) return false;
+    }
+    return true;
   }
 
   /** The item-level Rust macro invocations whose arguments name this symbol: ferrule expands no

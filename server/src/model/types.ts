@@ -2,6 +2,7 @@
 // Everything here is plain data: extract builds it from syntax, rules read it.
 
 import type { ScalarKind } from "./targets.js";
+import type { Cond } from "./conditions.js";
 
 export type Lang = "rust" | "c" | "cpp";
 
@@ -81,6 +82,14 @@ export interface FnDecl {
   generic?: boolean;
   /** Optional per-language facts extracted from the body, for body rules. */
   body?: BodyFacts;
+  /** Rust: the item's `#[cfg(…)]` predicates (all of them), with its extern block's. */
+  cfg?: Cond;
+  /** Rust: `#[cfg_attr(PRED, no_mangle | export_name = …)]`: exported under `name` (the function's
+   * own name when the attribute gives none, or gives it through a macro) when PRED holds. */
+  cfgExport?: { cond: Cond; name?: string }[];
+  /** Rust import: its extern block (`file#row`), and the block's `#[link(name = …)]` library. */
+  block?: string;
+  linkLib?: string;
 }
 
 /** Facts taken from a function body by the extract layer; rule families add what they need. */
@@ -99,6 +108,8 @@ export interface Field {
   doc?: string;
   /** C: a nullability qualifier `_Nullable` on the field itself (not on a callback's parameters). */
   nullableQual?: boolean;
+  /** Rust: the field's `#[cfg(…)]` predicate. */
+  cfg?: Cond;
 }
 
 export interface Repr {
@@ -132,6 +143,8 @@ export interface TypeDecl {
   pragmaPack?: number;
   /** True for a Rust `struct Foo { _private: [u8; 0] }`-style or `enum Foo {}` opaque marker. */
   opaqueMarker?: boolean;
+  /** Rust: the item's `#[cfg(…)]` predicate. */
+  cfg?: Cond;
 }
 
 /** A size/offset assertion written in the source (checked per target by the layout rules). */
@@ -188,6 +201,24 @@ export interface FileFacts {
   /** Rust: item-level macro invocations (`gain_kernel!(hyd_gain_f32, f32);`), which may define
    * items ferrule cannot see (it expands no macro). Absent when the file has none. */
   macroItems?: MacroItem[];
+  /** Rust: out-of-line module declarations (`mod dsp;`, `#[path = "x.rs"] mod y;`), for the
+   * project's module tree (analysis/project.ts). Absent when the file has none. */
+  mods?: ModDecl[];
+  /** Rust: inline modules and the file's inner `#![cfg(…)]` with a condition: the items between
+   * `line` and `endLine` (0-based, inclusive) are compiled only where `cond` holds. */
+  cfgScopes?: { line: number; endLine: number; cond: Cond }[];
+}
+
+/** `mod NAME;` in a Rust file: where the module's file is looked for (Rust Reference, "Modules"). */
+export interface ModDecl {
+  name: string;
+  /** `#[path = "…"]`, as written. */
+  path?: string;
+  /** The inline modules (`mod a { mod b; }`) it is declared in, outermost first. */
+  inline: string[];
+  /** The declaration's `#[cfg(…)]` (with its inline modules'). */
+  cond?: Cond;
+  line: number;
 }
 
 /** An item-level Rust macro invocation and the names its arguments mention: identifiers, and

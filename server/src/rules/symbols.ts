@@ -2,8 +2,9 @@
 // side actually exports them with C linkage.
 
 import type { Model } from "../model/boundary.js";
-import type { FnDecl } from "../model/types.js";
-import { finding, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
+import type { FnDecl, Range } from "../model/types.js";
+import { condText } from "../model/conditions.js";
+import { finding, type Finding, type GatheredItem, type RuleFamily, type RuleMeta } from "./api.js";
 
 export const NO_C_DECLARATION: RuleMeta = {
   id: "no-c-declaration",
@@ -36,9 +37,116 @@ export const DUPLICATE_SYMBOL: RuleMeta = {
   why: "Two definitions of one symbol fail to link, or one silently wins depending on link order.",
 };
 
+export const ONE_SIDED_EXPORTS: RuleMeta = {
+  id: "exports-declared-elsewhere",
+  severity: "info",
+  summary: "A crate's C exports have no declaration in the tree on purpose: they are named for another runtime's native-method scheme, or the crate's build script generates their header; one notice per crate.",
+  why: "These exports are not checked against a C declaration: the runtime that calls them (or the generated header) is outside what ferrule reads.",
+};
+
+/** Libraries every C toolchain or platform provides (common practice: the C standard library and
+ * its maths, threads and dynamic-loading parts, the C++ runtime, the Windows system libraries). */
+const SYSTEM_LIBS = new Set(["c", "m", "dl", "pthread", "rt", "util", "stdc++", "c++", "gcc", "gcc_s", "kernel32", "user32", "ole32", "oleaut32", "advapi32", "ws2_32", "shell32", "ntdll", "bcrypt", "userenv", "msvcrt", "ucrt", "vcruntime", "System", "Foundation", "CoreFoundation"]);
+
+/** Folder names that hold someone else's headers (common practice for vendored SDKs). */
+const VENDOR_DIRS = new Set(["vendor", "vendored", "third_party", "third-party", "thirdparty", "3rdparty", "external", "extern", "deps", "contrib", "sdk"]);
+
+/** Function-name suffixes of hand-written SIMD kernels (common practice in codec and DSP trees,
+ * whose assembly defines them). */
+const ISA_SUFFIX = /_(neon|sve2?|sse[234]?|ssse3|sse41|sse42|avx2?|avx512\w*|avx10\w*|mmx|rvv|lsx|lasx|vsx|altivec|msa|dotprod|i8mm)$/i;
+
+/** Why an export has no C declaration in the tree on purpose, or undefined. */
+function oneSided(model: Model, e: FnDecl): "runtime" | "generated" | "unreached" | undefined {
+  if (/^Java_[A-Za-z0-9]/.test(e.symbol)) return "runtime";
+  const u = model.fileUnit(e.file);
+  if (u?.kind === "unreached") return "unreached";
+  const crate = u?.crate ? model.config.project?.crates.get(u.crate) : undefined;
+  if (crate?.buildScript && !crate.hasHeader) return "generated";
+  return undefined;
+}
+
+/** Whether an import belongs to a library outside the tree: a system library by its
+ * `#[link(name = …)]`, or an extern block none of whose items the workspace declares or defines. */
+function outsideImport(model: Model, i: FnDecl): boolean {
+  const built = model.config.project?.builtLibs;
+  if (i.linkLib && SYSTEM_LIBS.has(i.linkLib) && !built?.has(i.linkLib)) return true;
+  // (read from the build: without a Cargo package around the file, every import is expected in the tree)
+  if (!i.block || !model.fileUnit(i.file)?.crate) return false;
+  const facts = model.files.get(i.file);
+  for (const s of facts?.fns ?? []) {
+    if (s === i || s.block !== i.block) continue;
+    const g = model.symbols.get(s.symbol);
+    if (g && (g.c.length || g.rust.some((x) => x.role === "export"))) return false;
+  }
+  return true;
+}
+
+/** Whether a header's declaration is defined outside the C/C++ sources: a vendored header, or a
+ * kernel the tree's assembly defines (a header of an architecture folder, a SIMD-suffixed name,
+ * or a header none of whose declarations the workspace defines). */
+function outsideProto(model: Model, p: FnDecl): boolean {
+  const parts = p.file.split(/[\\/]/);
+  const root = model.config.project?.root;
+  const rel = root && p.file.startsWith(root) ? p.file.slice(root.length).split(/[\\/]/) : parts.slice(-4);
+  if (rel.slice(0, -1).some((d) => VENDOR_DIRS.has(d.toLowerCase()))) return true;
+  if (!model.config.project?.hasAsm) return false;
+  if (model.variantOf(p.file) || ISA_SUFFIX.test(p.name)) return true;
+  const facts = model.files.get(p.file);
+  return !(facts?.fns ?? []).some((x) => {
+    if (x.role !== "proto") return false;
+    const g = model.symbols.get(x.symbol);
+    return !!g && (g.c.some((d) => d.role === "def") || g.rust.some((r) => r.role === "export"));
+  });
+}
+
+interface OneSidedItem extends GatheredItem {
+  crate: string;
+  why: "runtime" | "generated";
+  symbol: string;
+}
+
+function oneSidedFindings(items: GatheredItem[]): Finding[] {
+  const by = new Map<string, OneSidedItem[]>();
+  for (const it of items as OneSidedItem[]) {
+    const k = `${it.crate}\u0000${it.why}`;
+    const a = by.get(k) ?? [];
+    a.push(it);
+    by.set(k, a);
+  }
+  const out: Finding[] = [];
+  const cmp = (a: Range, b: Range) => (a.file < b.file ? -1 : a.file > b.file ? 1 : a.line - b.line || a.col - b.col);
+  for (const list of by.values()) {
+    list.sort((a, b) => cmp(a.range, b.range));
+    const [first] = list;
+    const n = list.length;
+    const names = list.slice(0, 3).map((x) => `\`${x.symbol}\``).join(", ") + (n > 3 ? ", …" : "");
+    const who = first!.crate ? `crate \`${first!.crate}\`` : "this crate";
+    const msg = first!.why === "runtime"
+      ? `${who} exports ${n} function(s) named for the JVM's native-method scheme (${names}): that runtime calls them, so no C or C++ declaration is expected and they are not checked against one`
+      : `${who} has a build script and no header in its folder: its C header is presumably generated when it builds, so its ${n} export(s) (${names}) are not checked against a C declaration`;
+    out.push(finding(ONE_SIDED_EXPORTS, first!.range, msg, list.slice(1, 6).map((x) => ({ range: x.range, message: `also exported: \`${x.symbol}\`` }))));
+  }
+  return out;
+}
+
+function gatherOneSided(model: Model): GatheredItem[] {
+  const out: OneSidedItem[] = [];
+  if (!model.hasSide("c")) return out;
+  for (const g of model.symbols.values()) {
+    if (g.c.length) continue;
+    for (const e of g.rust) {
+      if (e.role !== "export" || !e.noMangle || !e.isExtern || e.abi === "Rust") continue;
+      const why = oneSided(model, e);
+      if (why === "runtime" || why === "generated") out.push({ range: e.nameRange, crate: model.fileUnit(e.file)?.crate ?? "", why, symbol: e.symbol });
+    }
+  }
+  return out;
+}
+
 export const symbolsFamily: RuleFamily = {
   name: "symbols",
-  rules: [NO_C_DECLARATION, NO_DEFINITION, MACRO_MAY_DEFINE, EXPORT_NOT_UNMANGLED, DUPLICATE_SYMBOL],
+  rules: [NO_C_DECLARATION, NO_DEFINITION, MACRO_MAY_DEFINE, EXPORT_NOT_UNMANGLED, DUPLICATE_SYMBOL, ONE_SIDED_EXPORTS],
+  workspace: [{ id: ONE_SIDED_EXPORTS.id, gather: gatherOneSided, conclude: oneSidedFindings }],
   check(model: Model): Finding[] {
     const out: Finding[] = [];
     const hasRust = model.hasSide("rust");
@@ -53,6 +161,7 @@ export const symbolsFamily: RuleFamily = {
       // Rust exports with C linkage but no C-side declaration.
       if (hasC && protos.length === 0 && defs.length === 0) {
         for (const e of properExports) {
+          if (oneSided(model, e)) continue;
           out.push(finding(NO_C_DECLARATION, e.nameRange, `\`${e.symbol}\` is exported to C but no header or C++ file in the workspace declares it`, [], { data: { fn: e.id } }));
         }
       }
@@ -64,9 +173,15 @@ export const symbolsFamily: RuleFamily = {
           }
           continue;
         }
+        // (a C declaration of another program — a C build of its own, an example — or one a C
+        // definition already provides does not name this Rust function)
+        if (!e.noMangle && !imports.length && (defs.length || !protos.some((p) => model.shareUnit(p.file, e.file)))) continue;
         const other = protos[0] ?? defs[0];
         const rel = other ? [{ range: other.nameRange, message: `declared for C here` }] : [];
-        if (!e.noMangle && e.isExtern) {
+        if (!e.noMangle && e.isExtern && e.cfgExport?.length) {
+          const when = e.cfgExport.map((x) => `\`${condText(x.cond)}\``).join(" or ");
+          out.push(finding(EXPORT_NOT_UNMANGLED, e.nameRange, `\`${e.name}\` is declared in C but the Rust function is exported under that name only when ${when} holds, which it does not in this build (Cargo default features and the \`features\` setting): without it the name is mangled and the link fails`, rel, { data: { fn: e.id } }));
+        } else if (!e.noMangle && e.isExtern) {
           out.push(finding(EXPORT_NOT_UNMANGLED, e.nameRange, `\`${e.name}\` is declared in C but the Rust function has no #[no_mangle]: it is exported under a mangled name and the link fails (or binds to something else)`, rel, { data: { fn: e.id, fix: "add-no-mangle" } }));
         } else if (!e.isExtern || e.abi === "Rust") {
           out.push(finding(EXPORT_NOT_UNMANGLED, e.nameRange, `\`${e.name}\` is declared in C but uses the Rust calling convention: add \`extern "C"\``, rel, { data: { fn: e.id, fix: "add-extern" } }));
@@ -79,6 +194,7 @@ export const symbolsFamily: RuleFamily = {
         for (const p of protos) {
           // A function Rust imports is expected to live in a C library, possibly outside the workspace.
           if (!p.inHeader || imports.length) continue;
+          if (outsideProto(model, p)) continue;
           if (macros.length) {
             const [m] = macros;
             out.push(finding(MACRO_MAY_DEFINE, p.nameRange, `\`${p.name}\` has no definition ferrule can read; the macro invocation \`${m!.macro}!(…)\` names it and may define it, but ferrule expands no macro, so this declaration is not checked against a Rust signature`,
@@ -89,18 +205,19 @@ export const symbolsFamily: RuleFamily = {
         }
         if (hasC) {
           for (const i of imports) {
-            if (protos.length) continue;
+            if (protos.length || outsideImport(model, i)) continue;
             out.push(finding(NO_DEFINITION, i.nameRange, `\`${i.symbol}\` is imported from C but no C/C++ file in the workspace declares or defines it`, [], { data: { fn: i.id } }));
           }
         }
       }
       // Two definitions of one symbol.
       const definers: FnDecl[] = [...properExports, ...defs.filter((d) => d.cLinkage || d.lang === "c")];
-      if (definers.length > 1) {
-        const [first, ...rest] = definers;
-        for (const d of rest) {
-          out.push(finding(DUPLICATE_SYMBOL, d.nameRange, `\`${d.symbol}\` is defined more than once`, [{ range: first!.nameRange, message: "also defined here" }]));
-        }
+      // (only definitions that can end up in one linked program: one link unit, one target
+      // architecture, conditions that can hold together)
+      for (let j = 1; j < definers.length; j++) {
+        const d = definers[j]!;
+        const first = definers.slice(0, j).find((x) => model.mayLinkTogether(x, d));
+        if (first) out.push(finding(DUPLICATE_SYMBOL, d.nameRange, `\`${d.symbol}\` is defined more than once`, [{ range: first.nameRange, message: "also defined here" }]));
       }
     }
     return out;
