@@ -31,6 +31,13 @@ export interface MacroEntry {
 
 export const AMBIGUOUS = Symbol("ambiguous");
 
+/** Annotations the extractor reads as written (clang bounds-safety and nullability spellings, with
+ * the empty fallbacks headers define for other compilers): never replaced. */
+const READ_AS_WRITTEN = new Set([
+  "__counted_by", "__sized_by", "__counted_by_or_null", "__sized_by_or_null", "__ended_by",
+  "_Nullable", "_Nonnull", "_Null_unspecified", "__nullable", "__nonnull",
+]);
+
 const ATTR_WORDS = new Set([
   "__attribute__", "__attribute", "__declspec", "__cdecl", "__stdcall", "__fastcall", "__vectorcall", "__thiscall",
   "_cdecl", "_stdcall", "cdecl", "extern", "static", "inline", "__inline", "__inline__", "__forceinline", "_Noreturn",
@@ -68,7 +75,7 @@ export class MacroTable {
   /** The definition to expand, AMBIGUOUS when candidates disagree, undefined when not a macro. */
   resolve(name: string): MacroDef | typeof AMBIGUOUS | undefined {
     const e = this.map.get(name);
-    if (!e) return undefined;
+    if (!e || READ_AS_WRITTEN.has(name)) return undefined;
     if (e.defs.length === 1) return e.defs[0];
     const first = e.defs[0]!;
     if (e.defs.every((d) => sameDef(d, first))) return first;
