@@ -15,6 +15,8 @@ export interface FerruleConfig {
   maxFileBytes: number;
   /** C/C++ export/attribute macros to blank before reading (`SONAR_API int f(void);`). */
   stripMacros: string[];
+  /** Macros of the build for the C preprocessor (`defines`): NAME or NAME(params) → replacement. */
+  defines: Record<string, string>;
   /** Per-rule severity override; "off" disables the rule. */
   severity: Record<string, Severity | "off">;
   /** Per-family settings (e.g. port-declaration patterns), passed to the model. */
@@ -27,6 +29,7 @@ export const DEFAULTS: FerruleConfig = {
   exclude: [],
   maxFileBytes: 2_000_000,
   stripMacros: [],
+  defines: {},
   severity: {},
   families: {},
 };
@@ -72,6 +75,24 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
       case "stripMacros":
         cfg.stripMacros = strList(v, file, k);
         break;
+      case "defines": {
+        // a table (NAME = "value") or a list ("NAME", "NAME=value"), as -D takes them
+        const out: Record<string, string> = {};
+        if (Array.isArray(v)) {
+          for (const x of strList(v, file, k)) {
+            const eq = x.indexOf("=");
+            if (eq < 0) out[x] = "1";
+            else out[x.slice(0, eq)] = x.slice(eq + 1);
+          }
+        } else if (typeof v === "object" && v !== null) {
+          for (const [name, val] of Object.entries(v as Record<string, unknown>)) {
+            if (typeof val !== "string" && typeof val !== "number" && typeof val !== "bigint" && typeof val !== "boolean") throw new ConfigError(file, `${k}.${name}`, "expected a string or a number");
+            out[name] = typeof val === "boolean" ? (val ? "1" : "0") : String(val);
+          }
+        } else throw new ConfigError(file, k, "expected a table of NAME = value or a list of NAME=value");
+        cfg.defines = out;
+        break;
+      }
       case "max_file_bytes":
       case "maxFileBytes":
         if (typeof v !== "number" && typeof v !== "bigint") throw new ConfigError(file, k, "expected a number");
