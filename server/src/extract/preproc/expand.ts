@@ -51,6 +51,8 @@ export class MacroTable {
   /** Names whose definedness depends on the target (defined on some configured targets only, or
    * with different values): `#if` on them is undecided in a target-neutral reading. */
   readonly targetDependent = new Set<string>();
+  /** The C standard's reading (the oracle's): every definition seen counts. */
+  strictRead = false;
 
   define(d: MacroDef, undecided: boolean): void {
     const old = this.map.get(d.name);
@@ -73,11 +75,29 @@ export class MacroTable {
   }
 
   /** The definition to expand, AMBIGUOUS when candidates disagree, undefined when not a macro. */
+  private resolving = new Set<string>();
+
   resolve(name: string): MacroDef | typeof AMBIGUOUS | undefined {
+    if (this.resolving.has(name) || this.resolving.size > 16) return AMBIGUOUS;
+    this.resolving.add(name);
+    try {
+      return this.resolveNow(name);
+    } finally {
+      this.resolving.delete(name);
+    }
+  }
+
+  private resolveNow(name: string): MacroDef | typeof AMBIGUOUS | undefined {
     const e = this.map.get(name);
     if (!e || READ_AS_WRITTEN.has(name)) return undefined;
-    if (e.defs.length === 1) return e.defs[0];
     const first = e.defs[0]!;
+    if (e.maybeUndef && !this.strictRead) {
+      // defined only under a condition ferrule cannot decide: left as written unless every
+      // candidate only spells attributes (then expanding it cannot change the declaration)
+      const attr = e.defs.every((d) => !d.params === !first.params && this.attributeLike(d.body, 0));
+      if (!attr) return undefined;
+    }
+    if (e.defs.length === 1) return first;
     if (e.defs.every((d) => sameDef(d, first))) return first;
     if (e.defs.every((d) => !d.params === !first.params && this.attributeLike(d.body, 0))) {
       // export / attribute / linkage spellings: prefer the GCC attribute form (what the layout
@@ -123,6 +143,7 @@ export class MacroTable {
     for (const [k, v] of this.map) t.map.set(k, { defs: [...v.defs], maybeUndef: v.maybeUndef });
     for (const k of this.knownUndef) t.knownUndef.add(k);
     for (const k of this.targetDependent) t.targetDependent.add(k);
+    t.strictRead = this.strictRead;
     return t;
   }
 }

@@ -75,6 +75,7 @@ export function baseTable(env: PreprocEnv, kind: LangKind): MacroTable {
   const hit = baseCache.get(key);
   if (hit) return hit.clone();
   const t = new MacroTable();
+  t.strictRead = !!env.strict;
   const tables = env.targets.map((tr) => PREDEFINED[tr]).filter(Boolean);
   for (const name of PREDEFINED_NAMES) {
     const vals = tables.map((x) => x[name]);
