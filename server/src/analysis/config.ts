@@ -16,6 +16,8 @@ export interface FerruleConfig {
   maxFileBytes: number;
   /** C/C++ export/attribute macros to blank before reading (`SONAR_API int f(void);`). */
   stripMacros: string[];
+  /** Macros of the build for the C preprocessor (`defines`): NAME or NAME(params) → replacement. */
+  defines: Record<string, string>;
   /** Per-rule severity override; "off" disables the rule. */
   severity: Record<string, Severity | "off">;
   /** Per-family settings (e.g. port-declaration patterns), passed to the model. */
@@ -23,8 +25,6 @@ export interface FerruleConfig {
   /** Cargo features the build enables besides each package's defaults (`name` for every package
    * that has it, `package/name` for one). */
   features: string[];
-  /** Preprocessor defines the build passes to every C/C++ file (`NAME = "value"`). */
-  defines: Record<string, string>;
 }
 
 export const DEFAULTS: FerruleConfig = {
@@ -33,10 +33,10 @@ export const DEFAULTS: FerruleConfig = {
   exclude: [],
   maxFileBytes: 2_000_000,
   stripMacros: [],
+  defines: {},
   severity: {},
   families: {},
   features: [],
-  defines: {},
 };
 
 export class ConfigError extends Error {
@@ -105,6 +105,24 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
       case "stripMacros":
         cfg.stripMacros = strList(v, file, k);
         break;
+      case "defines": {
+        // a table (NAME = "value") or a list ("NAME", "NAME=value"), as -D takes them
+        const out: Record<string, string> = {};
+        if (Array.isArray(v)) {
+          for (const x of strList(v, file, k)) {
+            const eq = x.indexOf("=");
+            if (eq < 0) out[x] = "1";
+            else out[x.slice(0, eq)] = x.slice(eq + 1);
+          }
+        } else if (typeof v === "object" && v !== null) {
+          for (const [name, val] of Object.entries(v as Record<string, unknown>)) {
+            if (typeof val !== "string" && typeof val !== "number" && typeof val !== "bigint" && typeof val !== "boolean") throw new ConfigError(file, `${k}.${name}`, "expected a string or a number");
+            out[name] = typeof val === "boolean" ? (val ? "1" : "0") : String(val);
+          }
+        } else throw new ConfigError(file, k, "expected a table of NAME = value or a list of NAME=value");
+        cfg.defines = out;
+        break;
+      }
       case "max_file_bytes":
       case "maxFileBytes": {
         // a size of 0, a negative or fractional size or NaN would skip every file and pass
@@ -119,19 +137,6 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
           if (!/^[A-Za-z0-9_][A-Za-z0-9_+.-]*(\/[A-Za-z0-9_][A-Za-z0-9_+.-]*)?$/.test(f)) throw new ConfigError(file, k, `\`${f}\` is not a Cargo feature name (expected \`name\` or \`package/name\`)`);
         }
         cfg.features = list;
-        break;
-      }
-      case "defines": {
-        if (typeof v !== "object" || v === null || Array.isArray(v)) throw new ConfigError(file, k, "expected a table of NAME = \"value\"");
-        const out: Record<string, string> = {};
-        for (const [name, val] of Object.entries(v as Record<string, unknown>)) {
-          if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(name)) throw new ConfigError(file, `${k}.${name}`, "not a C macro name");
-          if (typeof val === "string") out[name] = val;
-          else if (typeof val === "number" || typeof val === "bigint") out[name] = String(val);
-          else if (typeof val === "boolean") out[name] = val ? "1" : "0";
-          else throw new ConfigError(file, `${k}.${name}`, "expected a string, a number or a boolean");
-        }
-        cfg.defines = out;
         break;
       }
       case "rules":

@@ -19,6 +19,28 @@ import type { FileFacts } from "../model/types.js";
 import { shareStrings } from "./share-strings.js";
 import { packFacts, type PackedFile } from "./packed.js";
 import { HeapBudget } from "./memory.js";
+import { IncludeIndex } from "../model/includes.js";
+import { includeReader } from "./include-reader.js";
+import type { PreprocEnv } from "../extract/preproc/index.js";
+import type { Triple } from "../model/targets.js";
+
+/** What a worker needs to preprocess: every file of the walk (include resolution), the settings. */
+export interface PreprocData {
+  files: string[];
+  includePaths: string[];
+  targets: Triple[];
+  defines?: Record<string, string>;
+}
+
+let envFor: { data: PreprocData; env: Omit<PreprocEnv, "strip" | "strict"> } | undefined;
+
+function preprocEnv(data: PreprocData | undefined, maxFileBytes: number): Omit<PreprocEnv, "strip" | "strict"> | undefined {
+  if (!data) return undefined;
+  if (envFor?.data !== data) {
+    envFor = { data, env: { targets: data.targets, defines: data.defines, readInclude: includeReader(IncludeIndex.of(data.files, data.includePaths), maxFileBytes) } };
+  }
+  return envFor.env;
+}
 
 export interface LoadedFile {
   file: string;
@@ -42,6 +64,8 @@ export interface ParallelOptions {
   mode?: "extract" | "parse";
   /** Attribute/export macro names to blank (setting `strip_macros`). */
   stripMacros?: readonly string[];
+  /** The preprocessor's inputs (without: each file is preprocessed on its own). */
+  preproc?: PreprocData;
   onProgress?: (done: number, total: number) => void;
 }
 
@@ -49,7 +73,7 @@ const WORKER_TAG = "ferrule-extract-worker";
 const BATCH = 8;
 
 /** Reads one file and extracts its facts; the same outcomes as Workspace.load (never throws). */
-export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract", stripMacros?: readonly string[]): LoadedFile {
+export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract", stripMacros?: readonly string[], preproc?: PreprocData): LoadedFile {
   let text: string;
   let note: string | undefined;
   try {
@@ -69,7 +93,7 @@ export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "
     } catch { /* the floor only measures parsing */ }
     return { file, hash, facts: emptyFacts(file, lang) };
   }
-  const facts = extractFile(file, text, { maxFileBytes, stripMacros });
+  const facts = extractFile(file, text, { maxFileBytes, stripMacros, preproc: preprocEnv(preproc, maxFileBytes) });
   if (note) facts.notices.push(encodingNotice(file, note));
   return { file, hash, facts };
 }
@@ -101,8 +125,8 @@ export function loadFiles(files: string[], opts: ParallelOptions): Promise<Loade
     mode,
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
-    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined },
-    local: (f) => readFacts(f, opts.maxFileBytes, mode, opts.stripMacros),
+    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, preproc: opts.preproc },
+    local: (f) => readFacts(f, opts.maxFileBytes, mode, opts.stripMacros, opts.preproc),
     receive: (r) => shareStrings(r, pool), // one copy of each repeated string (see share-strings.ts)
     onProgress: opts.onProgress,
   });
@@ -115,8 +139,8 @@ export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> 
     mode: "pack",
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
-    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress },
-    local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false),
+    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress, preproc: opts.preproc },
+    local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false, opts.preproc),
     // facts sent as they are (a structured clone): one copy of each repeated string
     receive: (r) => {
       if (r.facts) shareStrings(r.facts, pool);
@@ -125,8 +149,8 @@ export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> 
   });
 }
 
-function packOne(file: string, maxFileBytes: number, stripMacros: readonly string[] | undefined, compress: boolean): PackedFile {
-  const r = readFacts(file, maxFileBytes, "extract", stripMacros);
+function packOne(file: string, maxFileBytes: number, stripMacros: readonly string[] | undefined, compress: boolean, preproc?: PreprocData): PackedFile {
+  const r = readFacts(file, maxFileBytes, "extract", stripMacros, preproc);
   return packFacts(r.facts, r.hash, compress);
 }
 
@@ -207,7 +231,7 @@ async function runPool<I, R>(items: I[], job: PoolJob<I, R>): Promise<R[]> {
 export function runWorkerIfAsked(): boolean {
   if (isMainThread || !parentPort || (workerData as { tag?: string } | null)?.tag !== WORKER_TAG) return false;
   const port = parentPort;
-  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[]; compress?: boolean };
+  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[]; compress?: boolean; preproc?: PreprocData };
   const mode = data.mode;
   // the heap of a worker that packs its results holds only garbage between batches
   const budget = new HeapBudget(32);
@@ -215,11 +239,11 @@ export function runWorkerIfAsked(): boolean {
   if (mode === "pack") {
     // packed facts are moved, not copied (their buffers are transferred)
     serve = (items) => {
-      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros, !!data.compress));
+      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros, !!data.compress, data.preproc));
       return { out, moved: out.flatMap((p) => (p.packed ? [p.packed.buffer as ArrayBuffer] : [])) };
     };
   } else {
-    serve = (items) => ({ out: (items as string[]).map((f) => readFacts(f, data.maxFileBytes, mode, data.stripMacros)), moved: [] });
+    serve = (items) => ({ out: (items as string[]).map((f) => readFacts(f, data.maxFileBytes, mode, data.stripMacros, data.preproc)), moved: [] });
   }
   void initParsers().then(() => {
     port.on("message", (m: { stop?: boolean; start: number; items: unknown[] }) => {

@@ -14,7 +14,7 @@ import { FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/in
 import { DEFAULTS, type FerruleConfig } from "./config.js";
 import { concludeFinished, dedupe, finishFindings, sortFindings } from "./finish.js";
 import type { Suppression } from "./suppress.js";
-import { loadFiles, loadPacked } from "./parallel.js";
+import { loadFiles, loadPacked, type PreprocData } from "./parallel.js";
 import { HeapBudget } from "./memory.js";
 import { checkChunk, planChunks } from "./chunks.js";
 import type { Fix } from "../fixes/index.js";
@@ -23,6 +23,8 @@ import { encodingNotice, readSource } from "./textio.js";
 import type { ProjectInfo } from "../model/project.js";
 import type { ModDecl } from "../model/types.js";
 import { discoverProject, findProjectRoot } from "./project.js";
+import { includeReader } from "./include-reader.js";
+import type { PreprocEnv } from "../extract/preproc/index.js";
 
 export const SKIP_DIRS = new Set(["target", "node_modules", ".git", "build", "out", "dist", ".cache", ".svn", ".hg", "__pycache__"]);
 
@@ -199,6 +201,23 @@ export class Workspace {
     return { targets: this.config.targets, includePaths, families: this.config.families, project };
   }
 
+  /** C/C++ texts as last given (the preprocessor reads included files from here first, and a
+   * changed header re-reads the files that included it). */
+  private texts = new Map<string, string>();
+  /** Files found by the last walk (an include may name one not loaded yet). */
+  private known = new Set<string>();
+  private env: Omit<PreprocEnv, "strip" | "strict"> | undefined;
+
+  /** The preprocessor's environment: targets, `defines`, and included files resolved like the
+   * include graph, read from the texts given to update() or else from disk. */
+  private preprocEnv(): Omit<PreprocEnv, "strip" | "strict"> {
+    if (this.env) return this.env;
+    const all = () => new Set([...this.known, ...this.entries.keys()]);
+    const index = new IncludeIndex((f) => this.entries.has(f) || this.known.has(f), all, this.config.includePaths);
+    this.env = { targets: this.config.targets, defines: this.config.defines, readInclude: includeReader(index, this.config.maxFileBytes, (f) => this.texts.get(f)) };
+    return this.env;
+  }
+
   static async create(config?: FerruleConfig): Promise<Workspace> {
     await initParsers();
     return new Workspace(config);
@@ -223,9 +242,27 @@ export class Workspace {
     const old = this.entries.get(file);
     const same = !!old && old.hash === hash;
     if (same && !force) return false;
-    const facts = extractFile(file, text, { ...opts, maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros });
+    const isNew = !this.entries.has(file) && !this.known.has(file);
+    if (isNew) this.env = undefined; // a new file may change how an include resolves
+    const isC = langOf(file) !== "rust";
+    if (isC) {
+      if (!same) this.env = undefined; // its cached disk text, if any, is stale
+      this.texts.set(file, text);
+    }
+    const facts = extractFile(file, text, { ...opts, maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, preproc: this.preprocEnv() });
     this.entries.set(file, { hash, facts });
     if (this.projectRoot && (!old || modsKey(old.facts.mods) !== modsKey(facts.mods))) this.invalidateProject();
+    if (isC && old && !same) {
+      // files whose macros came through this one are read again (their cache key includes it)
+      for (const [f, e] of this.entries) {
+        const reads = (e.facts.extra.preproc as { reads?: string[] } | undefined)?.reads;
+        const t = this.texts.get(f);
+        if (f !== file && reads?.includes(file) && t !== undefined) {
+          this.entries.set(f, { hash: e.hash, facts: extractFile(f, t, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, preproc: this.preprocEnv() }) });
+          this.rereadDependents.add(f);
+        }
+      }
+    }
     if (same) {
       if (this.cachedModel) this.cachedModel = undefined; // same facts, new objects
       return false;
@@ -234,7 +271,12 @@ export class Workspace {
     return true;
   }
 
+  /** Files re-read because a file they include changed (the language server re-indexes them). */
+  readonly rereadDependents = new Set<string>();
+
   remove(file: string): void {
+    this.texts.delete(file);
+    this.env = undefined;
     if (this.entries.delete(file)) {
       if (this.projectRoot) this.invalidateProject();
       this.invalidate();
@@ -276,7 +318,7 @@ export class Workspace {
   async loadAllAsync(paths: string[], onProgress?: (n: number, total: number) => void, opts: { script?: string; workers?: number } = {}): Promise<void> {
     const walk = listSources(paths, this.config.exclude, undefined, [...paths, ...this.config.includePaths]);
     this.walkNotices.push(...walk.notices);
-    const loaded = await loadFiles(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress });
+    const loaded = await loadFiles(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress, preproc: this.preprocData(walk.files) });
     for (const r of loaded) this.entries.set(r.file, { hash: r.hash, facts: r.facts });
     this.projectRoot ??= paths.length ? findProjectRoot(path.resolve(paths[0]!)) : undefined;
     this.projectInfo = null;
@@ -288,10 +330,16 @@ export class Workspace {
     this.projectInfo = null;
     const walk = listSources(paths, this.config.exclude, undefined, [...paths, ...this.config.includePaths]);
     this.walkNotices.push(...walk.notices);
+    for (const f of walk.files) this.known.add(f);
+    this.env = undefined;
     walk.files.forEach((f, i) => {
       this.load(f);
       if (onProgress && i % 50 === 0) onProgress(i, walk.files.length);
     });
+  }
+
+  private preprocData(files: string[]): PreprocData {
+    return { files, includePaths: this.config.includePaths, targets: [...this.config.targets], defines: this.config.defines };
   }
 
   invalidate(): void {
@@ -358,7 +406,7 @@ export class Workspace {
     const readPaths = root ? [root] : paths;
     const walk = listSources(readPaths, this.config.exclude, undefined, [...readPaths, ...this.config.includePaths]);
     this.walkNotices.push(...walk.notices);
-    const packed = await loadPacked(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress: opts.onProgress, compress: shouldCompress(walk.files) });
+    const packed = await loadPacked(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress: opts.onProgress, compress: shouldCompress(walk.files), preproc: this.preprocData(walk.files) });
     opts.onPhase?.("read+extract");
     this.projectRoot ??= root ?? (paths.length ? findProjectRoot(path.resolve(paths[0]!)) : undefined);
     const modsBy = new Map(packed.filter((p) => p.mods).map((p) => [p.file, p.mods!]));

@@ -4,14 +4,19 @@ import type { Node } from "../parse/parser.js";
 import type Parser from "web-tree-sitter";
 import type { AbiType, FileFacts, Lang, Range } from "../model/types.js";
 
+let columnMap: ((line: number, col: number) => number) | undefined;
+
+/** While a file read through the preprocessor is extracted: maps a column of the expanded text
+ * to the source's (lines are the same), so every range points at the source. */
+export function setColumnMap(m: ((line: number, col: number) => number) | undefined): void {
+  columnMap = m;
+}
+
 export function rangeOf(file: string, n: Node): Range {
-  return {
-    file,
-    line: n.startPosition.row,
-    col: n.startPosition.column,
-    endLine: n.endPosition.row,
-    endCol: n.endPosition.column,
-  };
+  const s = n.startPosition;
+  const e = n.endPosition;
+  if (columnMap) return { file, line: s.row, col: columnMap(s.row, s.column), endLine: e.row, endCol: columnMap(e.row, e.column) };
+  return { file, line: s.row, col: s.column, endLine: e.row, endCol: e.column };
 }
 
 export function emptyFacts(file: string, lang: Lang): FileFacts {

@@ -7,6 +7,9 @@ import { emptyFacts, ExtractTimeout, extractDeadlinePassed, forgetWalks, setExtr
 import { extractC } from "./c.js";
 import { extractRust } from "./rust.js";
 import { blankAttributeMacros } from "./macros.js";
+import { preprocess, type PreprocEnv } from "./preproc/index.js";
+import { rangeOf, setColumnMap } from "./common.js";
+import { ALL_TRIPLES } from "../model/targets.js";
 import "./plugins/index.js"; // rule families' body and call-site extractors register themselves
 import type { Suppression } from "../model/types.js";
 
@@ -29,7 +32,7 @@ function collectSuppressions(t: Tree, facts: FileFacts): void {
       line: node.startPosition.row, endLine: node.endPosition.row,
       rules: m[1]!.split(",").map((x) => x.trim()).filter(Boolean),
       reason: (m[2] ?? "").trim(),
-      range: { file: facts.file, line: node.startPosition.row, col: node.startPosition.column, endLine: node.endPosition.row, endCol: node.endPosition.column },
+      range: rangeOf(facts.file, node),
     });
   }
   facts.extra.suppressions = out;
@@ -84,6 +87,9 @@ export interface ExtractOptions {
   keepTree?: (tree: Tree) => void;
   /** Item facts of the previous extraction of this file, for reuse (Rust files). */
   itemCache?: ItemCache;
+  /** The C preprocessor's environment (targets, settings, included files). Without it C/C++ is
+   * read as written, with only `strip_macros` and attribute-like macros of the file blanked. */
+  preproc?: Omit<PreprocEnv, "strip" | "strict"> | false;
 }
 
 function reusable(old: Tree | undefined, lang: Lang): Tree | undefined {
@@ -120,6 +126,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
   }
   if (text.charCodeAt(0) === 0xfeff) text = " " + text.slice(1); // BOM: keep columns stable
   let tree: Tree | undefined;
+  let expandedTree = false;
   const budget = opts.timeBudgetMs ?? DEFAULT_TIME_BUDGET_MS;
   setExtractDeadline(performance.now() + budget, budget);
   const timed = (f: FileFacts): FileFacts => {
@@ -134,27 +141,56 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
       return timed(rf);
     }
     let useLang: Lang = lang;
-    tree = parseText(lang, text, reusable(opts.oldTree, lang), budget);
+    // The preprocessor's text keeps the source's lines; columns map back through setColumnMap.
+    // A tree of expanded text is never reused for an edit of the source (its offsets differ).
+    let src = text;
+    let expanded = false;
+    let pp: ReturnType<typeof preprocess> | undefined;
+    if (opts.preproc !== false) {
+      pp = preprocess(file, text, { ...(opts.preproc ?? { targets: ALL_TRIPLES }), strip: opts.stripMacros });
+      if (pp.changed) {
+        src = pp.text;
+        expanded = true;
+        setColumnMap(pp.mapCol);
+      }
+    }
+    const old = expanded ? undefined : opts.oldTree;
+    tree = parseText(lang, src, reusable(old, lang), budget);
     if (lang === "c" && tree.rootNode.hasError) {
       // A .h file may hold C++; keep whichever grammar reads it with fewer errors. A .c file stays
       // C, but the bundled C grammar misreads some C11/GCC spellings the C++ grammar reads
       // (`union __attribute__((aligned(16))) u {…}`, `_Alignas(8) long x;`): use the C++ tree
       // when it has fewer errors.
-      const alt = parseText("cpp", text, reusable(opts.oldTree, "cpp"));
+      const alt = parseText("cpp", src, reusable(old, "cpp"));
       if (countErrors(alt) < countErrors(tree)) {
         tree.delete();
         tree = alt;
         useLang = isHeader(file) ? "cpp" : "c";
       } else alt.delete();
     }
-    const blanked = blankAttributeMacros(tree, text, opts.stripMacros);
-    if (blanked !== undefined) {
-      const treeLang: Lang = tree.getLanguage() === getLanguage("cpp") ? "cpp" : "c";
-      tree.delete();
-      tree = parseText(treeLang, blanked);
+    if (opts.preproc === false) {
+      const blanked = blankAttributeMacros(tree, text, opts.stripMacros);
+      if (blanked !== undefined) {
+        const treeLang: Lang = tree.getLanguage() === getLanguage("cpp") ? "cpp" : "c";
+        tree.delete();
+        tree = parseText(treeLang, blanked);
+      }
     }
+    // the caller would edit a kept tree with the source's offsets: keep none of expanded text
+    expandedTree = expanded;
     const facts = extractC(file, tree, useLang);
     facts.lang = lang === "c" && useLang === "cpp" ? "cpp" : lang;
+    if (pp) {
+      facts.extra.preproc = { envKey: pp.envKey, reads: pp.reads };
+      if (pp.ambiguous.length) {
+        facts.notices.push({
+          rule: "unknown-macro",
+          severity: "info",
+          message: `macros defined differently under conditions ferrule cannot decide are left unexpanded: ${pp.ambiguous.slice(0, 8).map((m) => `\`${m}\``).join(", ")}${pp.ambiguous.length > 8 ? ", …" : ""}; declarations using them may not be checked (list the build's macros under \`defines\` in .ferrule.toml)`,
+          range: { file, line: 0, col: 0, endLine: 0, endCol: 0 },
+        });
+      }
+    }
     if (text.includes("ferrule-allow")) collectSuppressions(tree, facts);
     return timed(facts);
   } catch (e) {
@@ -176,8 +212,9 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     return f;
   } finally {
     setExtractDeadline(Infinity);
+    setColumnMap(undefined);
     if (tree) forgetWalks(tree);
-    if (tree && opts.keepTree) opts.keepTree(tree);
+    if (tree && opts.keepTree && !expandedTree) opts.keepTree(tree);
     else tree?.delete();
   }
 }
