@@ -40,11 +40,25 @@ export interface RustRelease {
   nullableParam?: boolean;
 }
 
+/** A site inside a closure passed as argument `arg` (0-based, the receiver not counted) of the
+ * call at `call`: a crate helper that runs that argument under catch_unwind protects it. */
+export interface RustUnder {
+  call: Range;
+  arg: number;
+}
+
 export interface RustPanic {
   kind: "unwrap" | "expect" | "panic" | "unreachable" | "todo" | "assert" | "index" | "overflow" | "division" | "borrow_mut";
   text: string;
   range: Range;
   protected: boolean;
+  /** "warning": an explicit panic on a value C hands over (a pointer, a string conversion, a
+   * parameter), `panic!`/`unreachable!`/`assert!` on runtime values; "info": a possible overflow,
+   * out-of-range index or division with no guard seen, an unwrap of internal state. */
+  level?: "warning" | "info";
+  /** assert!: the names its condition reads, when all of them are plain locals/parameters. */
+  deps?: string[];
+  under?: RustUnder[];
 }
 
 export interface RustCall {
@@ -53,6 +67,14 @@ export interface RustCall {
   args: RustArg[];
   range: Range;
   protected: boolean;
+  /** Method call: the receiver's type when the body shows it (`self`, a typed parameter or
+   * local, `(*p)` with `p: *mut T`); `Self` already replaced by the impl's type. */
+  recv?: string;
+  /** Path call `Head::name(…)`: the last segment of the path before the name (`Self` replaced). */
+  head?: string;
+  /** Every argument is a constant (literals, UPPER_CASE consts, paths of enum variants). */
+  constArgs?: boolean;
+  under?: RustUnder[];
 }
 
 export interface RustOwnFacts {
@@ -68,6 +90,12 @@ export interface RustOwnFacts {
   panics: RustPanic[];
   calls: RustCall[];
   catchUnwind: boolean;
+  /** The type of the `impl` block the function is in (`impl Det` / `impl Trait for Det` → "Det"). */
+  implType?: string;
+  /** The trait of that impl block (`impl Write for Det` → "Write"). */
+  traitName?: string;
+  /** Indices of parameters the body runs under catch_unwind (`catch_unwind(f)`, a closure calling `f`). */
+  catchParams?: number[];
 }
 
 // ---- C / C++ ----
