@@ -56,8 +56,9 @@ export interface RustPanic {
    * parameter), `panic!`/`unreachable!`/`assert!` on runtime values; "info": a possible overflow,
    * out-of-range index or division with no guard seen, an unwrap of internal state. */
   level?: "warning" | "info";
-  /** assert!: the names its condition reads, when all of them are plain locals/parameters. */
-  deps?: string[];
+  /** A warning only on call paths where one of these parameters (bit i = parameter i, `self` not
+   * counted) carries a value C handed over; info on the others. Absent: `level` as it is. */
+  taint?: number;
   under?: RustUnder[];
 }
 
@@ -72,8 +73,8 @@ export interface RustCall {
   recv?: string;
   /** Path call `Head::name(…)`: the last segment of the path before the name (`Self` replaced). */
   head?: string;
-  /** Every argument is a constant (literals, UPPER_CASE consts, paths of enum variants). */
-  constArgs?: boolean;
+  /** Per argument (the receiver not counted): the caller's parameters it reads (bitmask). */
+  argTaint?: number[];
   under?: RustUnder[];
 }
 

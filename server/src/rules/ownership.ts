@@ -532,11 +532,24 @@ function indistinctFindings(items: GatheredItem[]): Finding[] {
 
 const PANIC_ABIS_UNWIND = /-unwind$/;
 
-type Site = RustPanic;
+type Site = RustPanic & { eff: "warning" | "info" };
+
+/** `#[cfg(debug_assertions)]` (attribute text, which the grammar leaves opaque): the function
+ * exists in debug builds only. */
+function debugOnly(fn: FnDecl): boolean {
+  return fn.attrs.some((a) => /cfg\s*\(\s*debug_assertions\s*\)/.test(a));
+}
+
+/** A site's level on a call path where the parameters in `active` carry C's values. */
+function effLevel(fn: FnDecl, p: RustPanic, active: number): "warning" | "info" {
+  const base = p.level ?? (["index", "overflow", "division", "borrow_mut"].includes(p.kind) ? "info" : "warning");
+  if (base === "info" || debugOnly(fn)) return "info";
+  if (p.taint !== undefined && (p.taint & active) === 0) return "info";
+  return "warning";
+}
 
 function levelOf(p: Site): "warning" | "info" {
-  if (p.level) return p.level;
-  return ["index", "overflow", "division", "borrow_mut"].includes(p.kind) ? "info" : "warning";
+  return p.eff;
 }
 
 function panicKindText(k: string): string {
@@ -578,18 +591,23 @@ function checkPanics(model: Model, out: Finding[]): void {
     }
     return false;
   };
-  const live = (fn: FnDecl, o: RustOwnFacts, constCall: boolean): Site[] => o.panics.filter((p) => !p.protected && !caught(fn, p) &&
-    // an assert on the helper's own parameters, called with constants only, cannot fail on C's input
-    !(constCall && p.deps && p.deps.every((d) => fn.params.some((q) => q.name === d))));
+  const live = (fn: FnDecl, o: RustOwnFacts, active: number): Site[] =>
+    o.panics.filter((p) => !p.protected && !caught(fn, p)).map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
+  /** The callee's parameters that carry C's values: those whose argument reads an active one. */
+  const passOn = (c: RustCall, active: number): number => {
+    let m = 0;
+    (c.argTaint ?? []).forEach((t, j) => { if (j < 30 && (t & active)) m |= 1 << j; });
+    return m;
+  };
   type Hit = { chain: FnDecl[]; site: Site };
   const memo = new Map<string, Hit | null>();
-  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>, constCall: boolean): Hit | undefined => {
+  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>, active: number): Hit | undefined => {
     const o = own(fn);
     if (!o || depth > 6 || seen.has(fn.id)) return undefined;
-    const mk = `${fn.id}|${constCall}`;
+    const mk = `${fn.id}|${active}`;
     if (memo.has(mk)) return memo.get(mk) ?? undefined;
     seen.add(fn.id);
-    const sites = live(fn, o, constCall);
+    const sites = live(fn, o, active);
     let best: Hit | undefined;
     const w = sites.find((p) => levelOf(p) === "warning");
     if (w) best = { chain: [fn], site: w };
@@ -599,7 +617,7 @@ function checkPanics(model: Model, out: Finding[]): void {
         if (c.protected || caught(fn, c)) continue;
         const h = idx.resolve(fn, c);
         if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-        const r = helperPanics(h, depth + 1, seen, !!c.constArgs);
+        const r = helperPanics(h, depth + 1, seen, passOn(c, active));
         if (r && (!best || (levelOf(r.site) === "warning" && levelOf(best.site) !== "warning"))) best = { chain: [fn, ...r.chain], site: r.site };
         if (best && levelOf(best.site) === "warning") break;
       }
@@ -612,13 +630,15 @@ function checkPanics(model: Model, out: Finding[]): void {
     if (fn.lang !== "rust" || fn.role !== "export" || !fn.isExtern || fn.abi === "Rust" || PANIC_ABIS_UNWIND.test(fn.abi)) continue;
     const o = own(fn);
     if (!o) continue;
-    const direct = live(fn, o, false);
+    // every parameter of the exported function is C's
+    const all = -1;
+    const direct = live(fn, o, all);
     const viaHelpers: { call: Range; chain: FnDecl[]; site: Site }[] = [];
     for (const c of o.calls) {
       if (c.protected || caught(fn, c)) continue;
       const h = idx.resolve(fn, c);
       if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-      const r = helperPanics(h, 1, new Set([fn.id]), !!c.constArgs);
+      const r = helperPanics(h, 1, new Set([fn.id]), passOn(c, all));
       if (r) viaHelpers.push({ call: c.range, chain: r.chain, site: r.site });
     }
     if (!direct.length && !viaHelpers.length) continue;

@@ -148,9 +148,9 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
   if (sense.traitName) own.traitName = sense.traitName;
   const paramNames = fn.params.map((p) => p.name);
   /** Records a panic site unless it cannot panic; `level` from the sense's reasoning. */
-  const site = (kind: RustOwnFacts["panics"][number]["kind"], text: string, n: Node, level: "warning" | "info", deps?: string[]) => {
+  const site = (kind: RustOwnFacts["panics"][number]["kind"], text: string, n: Node, level: "warning" | "info", taint?: number) => {
     const p: RustOwnFacts["panics"][number] = { kind, text, range: rangeOf(file, n), protected: isProtected(n), level };
-    if (deps) p.deps = deps;
+    if (taint !== undefined) p.taint = taint;
     const u = sense.underOf(n);
     if (u) p.under = u;
     own.panics.push(p);
@@ -329,8 +329,8 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         const kind = PANIC_MACROS[mac];
         if (kind === "assert") {
           const d = sense.assertDeps(n, mac);
-          if (d !== "const") site(kind, `${mac}!`, n, "warning", d);
-        } else if (kind && !sense.armUnreachable(n)) site(kind, `${mac}!`, n, "warning");
+          if (d !== "const") site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
+        } else if (kind && !sense.armUnreachable(n)) site(kind, `${mac}!`, n, "warning", sense.branchTaint(n));
         return false; // token trees are not parsed
       }
       case "index_expression": {
@@ -379,7 +379,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     const prot = isProtected(n);
     sense.onCall(n, range);
     const under = sense.underOf(n);
-    const constArgs = args.length > 0 && args.every((a) => sense.isConstExpr(a));
+    const argTaint = args.map((a) => (sense.isConstExpr(a) ? 0 : sense.taintOf(a)));
     let fe = f;
     if (f.type === "generic_function") fe = f.childForFieldName("function") ?? f;
     if (fe.type === "field_expression") {
@@ -388,8 +388,8 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       const r = argRef(recv);
       switch (method) {
         case "unwrap": case "expect": {
-          const level = sense.unwrapLevel(n, recv);
-          if (level) site(method, `.${method}()`, n, level);
+          const lv = sense.unwrapLevel(n, recv);
+          if (lv) site(method, `.${method}()`, n, lv.level, lv.taint);
           return;
         }
         case "borrow_mut":
@@ -421,7 +421,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       const call: RustOwnFacts["calls"][number] = { callee: method, method: true, args: [r, ...args.map((a) => argRef(a))], range, protected: prot };
       const rt = sense.recvType(recv);
       if (rt) call.recv = rt;
-      if (constArgs) call.constArgs = true;
+      if (argTaint.some((t) => t)) call.argTaint = argTaint;
       if (under) call.under = under;
       own.calls.push(call);
       return;
@@ -547,7 +547,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         const h = sense.headOf(inner);
         if (h) call.head = h;
       }
-      if (constArgs) call.constArgs = true;
+      if (argTaint.some((t) => t)) call.argTaint = argTaint;
       if (under) call.under = under;
       own.calls.push(call);
     }

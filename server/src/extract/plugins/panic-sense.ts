@@ -181,7 +181,7 @@ export class ValueFacts {
   private placed: Placed[] = [];
   private assigns = new Map<string, number[]>();
   /** Slice/array lengths known by name (`x` → `n`). */
-  readonly lens = new Map<string, string>();
+  readonly lens = new Scoped<string>();
   /** Locals whose every assignment is `… % k` (name → k's text). */
   readonly modBounded = new Map<string, string>();
 
@@ -373,6 +373,12 @@ const KEEP_CALLS = new Set(["from_raw_parts", "from_raw_parts_mut", "from_ptr", 
 /** Conversions that fail on some input: an unwrap of their result is an explicit panic on C's value. */
 const CONVERSIONS = new Set(["to_str", "from_utf8", "parse", "try_into", "try_from", "from_ptr", "from_bytes_with_nul", "from_bytes_until_nul", "into_string", "to_string_checked"]);
 const LOCKS = new Set(["lock", "read", "write"]);
+/** Reading through a raw pointer C handed over. */
+const FROM_C_PTR = new Set(["from_ptr", "from_raw_parts", "as_ref", "as_mut"]);
+
+/** A site's level; with `taint`, a warning only when one of those parameters carries C's value on
+ * the call path (the exported function's own parameters always do), else info. */
+export interface SiteLevel { level: "warning" | "info"; taint?: number }
 const WIDE = new Set(["u64", "i64", "u128", "i128"]);
 const NARROW = new Set(["u8", "i8", "u16", "i16", "u32", "i32", "c_char", "c_schar", "c_uchar", "c_short", "c_ushort", "c_int", "c_uint", "bool"]);
 
@@ -404,13 +410,34 @@ export function typeName(t: Node | null | undefined, self?: string, depth = 0): 
 interface Span { start: number; end: number }
 const inside = (n: Node, s: Span) => n.startIndex >= s.start && n.endIndex <= s.end;
 
+/** Values by local name that change where a `let` ends (shadowing): `get(name, at)` is the value
+ * of the last `set` made from a position at or before `at`. */
+export class Scoped<T> {
+  private m = new Map<string, { from: number; v: T | undefined }[]>();
+  set(name: string, from: number, v: T | undefined): void {
+    const a = this.m.get(name) ?? [];
+    a.push({ from, v });
+    this.m.set(name, a);
+  }
+  get(name: string, at: number): T | undefined {
+    const a = this.m.get(name);
+    if (!a) return undefined;
+    let best: { from: number; v: T | undefined } | undefined;
+    for (const e of a) if (e.from <= at && (!best || e.from >= best.from)) best = e;
+    return best?.v;
+  }
+}
+
 export class PanicSense {
   readonly vf = new ValueFacts();
-  readonly tainted = new Set<string>();
-  readonly types = new Map<string, string>();
-  readonly primTypes = new Map<string, string>();
+  /** Which parameters (bit i = parameter i, `self` not counted) a local's value comes from. */
+  readonly taint = new Scoped<number>();
+  readonly types = new Scoped<string>();
+  readonly primTypes = new Scoped<string>();
   /** Locals holding a slice of constant length (`split_at(K).0`, `&z[..K]`, `from_raw_parts(p, 16)`). */
-  readonly fixed = new Set<string>();
+  readonly fixed = new Scoped<boolean>();
+  /** Locals holding the Result of catch_unwind. */
+  readonly caughtResult = new Scoped<boolean>();
   readonly closures: { start: number; end: number; call: import("../../model/types.js").Range; arg: number }[] = [];
   implType?: string;
   traitName?: string;
@@ -423,57 +450,59 @@ export class PanicSense {
       const tr = impl.childForFieldName("trait");
       this.traitName = tr ? (tr.type === "generic_type" ? typeName(tr.childForFieldName("type")) : typeName(tr)) : undefined;
     }
+    let i = 0;
     for (const p of fnNode.childForFieldName("parameters")?.namedChildren ?? []) {
       if (p.type !== "parameter") continue;
+      const bit = i < 30 ? 1 << i : 0;
+      i++;
       const pat = p.childForFieldName("pattern");
       const name = pat?.type === "identifier" ? pat.text : pat?.type === "mut_pattern" ? pat.namedChild(0)?.text : undefined;
       if (!name) continue;
       const t = p.childForFieldName("type");
-      this.tainted.add(name);
-      const tn = typeName(t, this.implType);
-      if (tn) this.types.set(name, tn);
-      if (t?.type === "primitive_type") this.primTypes.set(name, t.text);
+      this.taint.set(name, 0, bit);
+      this.types.set(name, 0, typeName(t, this.implType));
+      if (t?.type === "primitive_type" || NARROW.has(t?.text ?? "")) this.primTypes.set(name, 0, t!.text);
       const len = arrayLenOfType(t);
-      if (len) this.vf.lens.set(name, len);
+      if (len) this.vf.lens.set(name, 0, len);
     }
   }
 
   // ---- walk hooks
 
+  /** A `let`: its names take their new values where the statement ends (the value still sees the
+   * names it shadows). */
   onLet(n: Node): void {
     const pat = n.childForFieldName("pattern");
     const val = n.childForFieldName("value");
     const tt = n.childForFieldName("type");
+    const at = n.endIndex;
     const names: string[] = [];
     const name = pat?.type === "identifier" ? pat.text : pat?.type === "mut_pattern" ? pat.namedChild(0)?.text : undefined;
     if (name) names.push(name);
     else if (pat?.type === "tuple_pattern") for (const c of pat.namedChildren) if (c.type === "identifier") names.push(c.text);
-    for (const nm of names) this.vf.noteAssign(nm, n.startIndex);
+    for (const nm of names) this.vf.noteAssign(nm, at);
     if (name) {
-      this.types.delete(name);
-      this.vf.lens.delete(name);
-      this.fixed.delete(name);
-      const tn = typeName(tt, this.implType) ?? this.typeOfValue(val);
-      if (tn) this.types.set(name, tn);
-      if (tt?.type === "primitive_type") this.primTypes.set(name, tt.text);
-      const len = arrayLenOfType(tt) ?? lengthOfValue(val);
-      if (len) this.vf.lens.set(name, len);
-      if (this.isFixedSlice(val)) this.fixed.add(name);
+      this.types.set(name, at, typeName(tt, this.implType) ?? this.typeOfValue(val));
+      this.primTypes.set(name, at, tt?.type === "primitive_type" || NARROW.has(tt?.text ?? "") ? tt!.text : undefined);
+      this.vf.lens.set(name, at, arrayLenOfType(tt) ?? lengthOfValue(val));
+      this.fixed.set(name, at, this.isFixedSlice(val));
+      const cf = unparen(val)?.type === "call_expression" ? unparen(val)!.childForFieldName("function") : undefined;
+      this.caughtResult.set(name, at, !!cf && /(^|::)catch_unwind$/.test(norm(cf)));
     }
     // let (head, rest) = buf.split_at(K)
     if (pat?.type === "tuple_pattern" && val?.type === "call_expression") {
       const f = val.childForFieldName("function");
       const a0 = val.childForFieldName("arguments")?.namedChildren.find((c) => !c.type.endsWith("comment"));
       const first = pat.namedChild(0);
-      if (f?.type === "field_expression" && f.childForFieldName("field")?.text === "split_at" && a0 && this.isConstExpr(a0) && first?.type === "identifier") this.fixed.add(first.text);
+      if (f?.type === "field_expression" && f.childForFieldName("field")?.text === "split_at" && a0 && this.isConstExpr(a0) && first?.type === "identifier") this.fixed.set(first.text, at, true);
     }
-    if (val && this.mentionsTaint(val) && !this.isTransform(val)) for (const nm of names) this.tainted.add(nm);
-    else for (const nm of names) this.tainted.delete(nm);
+    const t = val && !this.isTransform(val) ? this.taintOf(val) : 0;
+    for (const nm of names) this.taint.set(nm, at, t);
   }
 
   onAssign(n: Node): void {
     const r = rootName(n.childForFieldName("left"));
-    if (r) this.vf.noteAssign(r, n.startIndex);
+    if (r) this.vf.noteAssign(r, n.endIndex);
   }
 
   /** A call's closure arguments: sites inside run under the callee (`guard(|| …)`). */
@@ -521,7 +550,7 @@ export class PanicSense {
     }
     if (!u) return undefined;
     if (u.type === "self") return this.implType;
-    if (u.type === "identifier") return this.types.get(u.text);
+    if (u.type === "identifier") return this.types.get(u.text, u.startIndex);
     return undefined;
   }
 
@@ -561,7 +590,7 @@ export class PanicSense {
     }
     if (u?.type === "reference_expression") u = u.childForFieldName("value");
     if (!u) return false;
-    if (u.type === "identifier") return this.fixed.has(u.text);
+    if (u.type === "identifier") return !!this.fixed.get(u.text, u.startIndex);
     const len = lengthOfValue(u);
     if (len !== undefined && u.type === "call_expression") {
       const args = u.childForFieldName("arguments")?.namedChildren.filter((c) => !c.type.endsWith("comment")) ?? [];
@@ -583,10 +612,10 @@ export class PanicSense {
     return false;
   }
 
-  /** Whether an expression reads a value C handed over (a parameter other than `self`, or a local
-   * made from one without a transforming call), outside closures and `if` conditions. */
-  mentionsTaint(n: Node): boolean {
-    if (n.type === "identifier") return this.tainted.has(n.text);
+  /** The parameters (bitmask) whose values an expression reads: a parameter other than `self`, or
+   * a local made from one without a transforming call; closures and `if` conditions left out. */
+  taintOf(n: Node): number {
+    if (n.type === "identifier") return this.taint.get(n.text, n.startIndex) ?? 0;
     const skip: Span[] = [];
     for (const c of n.descendantsOfType(["closure_expression", "if_expression"])) {
       if (c.type === "closure_expression") skip.push({ start: c.startIndex, end: c.endIndex });
@@ -595,15 +624,21 @@ export class PanicSense {
         if (cond) skip.push({ start: cond.startIndex, end: cond.endIndex });
       }
     }
+    let mask = 0;
     for (const id of n.descendantsOfType("identifier")) {
-      if (!this.tainted.has(id.text) || skip.some((s) => inside(id, s))) continue;
+      const t = this.taint.get(id.text, id.startIndex) ?? 0;
+      if (!t || skip.some((s) => inside(id, s))) continue;
       // `value.to_string()` of an integer has no NUL and no invalid UTF-8
       const p = id.parent;
-      if (p?.type === "field_expression" && p.childForFieldName("field")?.text === "to_string" && this.primTypes.has(id.text)) continue;
+      if (p?.type === "field_expression" && p.childForFieldName("field")?.text === "to_string" && this.primTypes.get(id.text, id.startIndex)) continue;
       if (p?.type === "scoped_identifier") continue;
-      return true;
+      mask |= t;
     }
-    return false;
+    return mask;
+  }
+
+  mentionsTaint(n: Node): boolean {
+    return this.taintOf(n) !== 0;
   }
 
   /** A value made by a free function or associated function of the crate (`encode(key)`): its
@@ -627,12 +662,14 @@ export class PanicSense {
   }
 
   /** The level of `recv.unwrap()` / `recv.expect(…)`, or undefined when it cannot panic. */
-  unwrapLevel(site: Node, recv: Node | null | undefined): "warning" | "info" | undefined {
+  unwrapLevel(site: Node, recv: Node | null | undefined): SiteLevel | undefined {
     const u = unparen(recv);
-    if (!u) return "warning";
+    if (!u) return { level: "warning" };
     if (this.isConstExpr(u)) return undefined;
     const facts = this.vf.at(site);
     if (this.vf.isSome(facts, norm(u))) return undefined;
+    // the result of catch_unwind unwrapped: the caught panic goes on across the boundary
+    if (u.type === "identifier" && this.caughtResult.get(u.text, u.startIndex)) return { level: "warning" };
     if (u.type === "call_expression") {
       const f = u.childForFieldName("function");
       const args = u.childForFieldName("arguments")?.namedChildren.filter((c) => !c.type.endsWith("comment")) ?? [];
@@ -649,14 +686,15 @@ export class PanicSense {
       // a slice of constant length converted to an array of that length
       if ((fname === "try_into" && recv2 && this.isFixedSlice(recv2)) || (fname === "try_from" && args.length === 1 && this.isFixedSlice(args[0]))) return undefined;
       // Mutex/RwLock poisoning: only after a panic elsewhere while the lock was held
-      if (fname && LOCKS.has(fname) && args.length === 0 && recv2 && !this.mentionsTaint(recv2)) return "info";
+      if (fname && LOCKS.has(fname) && args.length === 0 && recv2 && !this.mentionsTaint(recv2)) return { level: "info" };
     }
-    if (this.mentionsTaint(u)) return "warning";
-    for (const c of [u, ...u.descendantsOfType(["field_identifier", "identifier"])]) {
-      if (c.type === "call_expression") continue;
-      if (CONVERSIONS.has(c.text) && (c.type === "field_identifier" || c.parent?.type === "scoped_identifier")) return "warning";
-    }
-    return "info";
+    // a C string read through a raw pointer and converted: C decides whether it converts
+    const ids = u.descendantsOfType(["field_identifier", "identifier"]);
+    const named = (set: Set<string>) => ids.some((c) => set.has(c.text) && (c.type === "field_identifier" || c.parent?.type === "scoped_identifier"));
+    if (named(FROM_C_PTR) && named(CONVERSIONS)) return { level: "warning" };
+    // otherwise an explicit panic on whatever the receiver reads: a warning when that is a value
+    // the caller handed over (decided per call path by the rule), else info
+    return { level: "warning", taint: this.taintOf(u) };
   }
 
   /** `x[i]`: undefined when the index is in range by what the code shows, else "info". */
@@ -670,7 +708,7 @@ export class PanicSense {
     const facts = this.vf.at(n);
     const i = uncast(idx);
     const it = norm(i);
-    const len = this.vf.lens.get(b);
+    const len = this.vf.lens.get(b, n.startIndex);
     if (facts.some((f) => f.k === "lt" && f.a === it && !f.incl && (f.b === `${b}.len()` || (len !== undefined && f.b === len)))) return undefined;
     if (len !== undefined && this.vf.modBounded.get(it) === len) return undefined;
     if (i?.type === "binary_expression" && opOf(i) === "%") {
@@ -706,7 +744,7 @@ export class PanicSense {
         if (c?.type !== "type_cast_expression") return intLit(c) !== undefined && intLit(c)! < 2 ** 31;
         if (!WIDE.has(c.childForFieldName("type")?.text ?? "")) return false;
         const v = uncast(c.childForFieldName("value"));
-        return v?.type === "identifier" && NARROW.has(this.primTypes.get(v.text) ?? "");
+        return v?.type === "identifier" && NARROW.has(this.primTypes.get(v.text, v.startIndex) ?? "");
       };
       if (widened(n.childForFieldName("left")) && widened(n.childForFieldName("right"))) return undefined;
     }
@@ -764,6 +802,41 @@ export class PanicSense {
     }
     for (let v = 0; v <= max; v++) if (!seen.has(v)) return false;
     return true;
+  }
+
+  /** panic!/unreachable!/todo! under a branch: the parameters its `match` scrutinee or `if`
+   * condition reads (undefined when no branch guards it: it always runs). */
+  branchTaint(n: Node): number | undefined {
+    let c: Node = n;
+    let p = n.parent;
+    for (let i = 0; p && i < 8; i++, c = p, p = p.parent) {
+      if (p.type === "function_item" || p.type === "closure_expression") return undefined;
+      if (p.type === "match_arm") {
+        const m = p.parent?.parent;
+        const v = m?.type === "match_expression" ? m.childForFieldName("value") : undefined;
+        return v ? this.taintOf(v) : undefined;
+      }
+      if (p.type === "if_expression" && p.childForFieldName("condition")?.id !== c.id) {
+        const cond = p.childForFieldName("condition");
+        return cond ? this.taintOfCond(cond) : undefined;
+      }
+    }
+    return undefined;
+  }
+
+  /** taintOf for a condition (taintOf leaves `if` conditions out of the values it reads). */
+  taintOfCond(cond: Node): number {
+    let mask = 0;
+    for (const id of [cond, ...cond.descendantsOfType("identifier")]) {
+      if (id.type === "identifier") mask |= this.taint.get(id.text, id.startIndex) ?? 0;
+    }
+    return mask;
+  }
+
+  taintOfNames(names: string[], at: number): number {
+    let mask = 0;
+    for (const nm of names) mask |= this.taint.get(nm.replace(/\(\)$/, ""), at) ?? 0;
+    return mask;
   }
 
   /** assert!/assert_eq!/assert_ne!: undefined when its condition reads constants only (or a
