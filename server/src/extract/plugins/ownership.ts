@@ -115,10 +115,14 @@ function constsOf(n: Node): Map<string, number> {
   if (!m) {
     m = new Map();
     const root = (tree as { rootNode: Node }).rootNode;
-    for (const c of root.descendantsOfType("const_item")) {
+    for (const c of root.descendantsOfType(["const_item", "static_item"])) {
       const name = c.childForFieldName("name")?.text;
       const v = evalConst(c.childForFieldName("value"), m);
       if (name && v !== null && !m.has(name)) m.set(name, v);
+      // `NAME[]`: the length of a const/static array (also in the item cache key, see extractRust)
+      const at = c.childForFieldName("type");
+      const len = at?.type === "array_type" ? evalConst(at.childForFieldName("length"), m) : null;
+      if (name && len !== null && !m.has(`${name}[]`)) m.set(`${name}[]`, len);
     }
     fileConsts.set(tree, m);
   }

@@ -524,8 +524,15 @@ export class PanicSense {
   // ---- types
 
   typeOfValue(v: Node | null | undefined): string | undefined {
-    const u = unparen(v);
+    let u = unparen(v);
+    // `&mut *p`, `&*p`, `*p`: the type `p` points to
+    for (let i = 0; u && i < 4; i++) {
+      if (u.type === "reference_expression") u = unparen(u.childForFieldName("value"));
+      else if (u.type === "unary_expression" && u.child(0)?.text === "*") u = unparen(u.namedChild(0));
+      else break;
+    }
     if (!u) return undefined;
+    if (u.type === "identifier") return this.types.get(u.text, u.startIndex);
     if (u.type === "struct_expression") return typeName(u.childForFieldName("name"), this.implType) ?? lastPath(u.childForFieldName("name")?.text, this.implType);
     if (u.type === "call_expression") {
       const f = u.childForFieldName("function");
@@ -715,7 +722,8 @@ export class PanicSense {
       const k = norm(uncast(i.childForFieldName("right")));
       if (k === `${b}.len()` || (len !== undefined && k === len)) return undefined;
     }
-    const lenV = len !== undefined ? (/^\d+$/.test(len) ? Number(len) : this.consts(len)) : undefined;
+    if (base.type === "identifier" && this.consts(`${b}[]`) !== undefined && facts.some((f) => f.k === "lt" && f.a === it && !f.incl && f.b === `${b}.len()`)) return undefined;
+    const lenV = len !== undefined ? (/^\d+$/.test(len) ? Number(len) : this.consts(len)) : base.type === "identifier" ? this.consts(`${b}[]`) : undefined;
     const m = maxOf(i, this.consts);
     if (lenV !== undefined && m !== undefined && m < lenV) return undefined;
     return "info";
@@ -771,14 +779,14 @@ export class PanicSense {
     if (!scrut) return false;
     if (this.isConstExpr(scrut)) return true;
     const pat = arm.childForFieldName("pattern");
-    const p0 = pat?.type === "match_pattern" ? pat.namedChild(0) : pat;
+    const p0 = pat?.type === "match_pattern" ? pat.namedChild(0) ?? pat : pat;
     const errArm = p0?.type === "tuple_struct_pattern" && p0.childForFieldName("type")?.text === "Err" &&
       p0.namedChildren.slice(1).every((c) => c.text === "_" || (c.type === "identifier" && c.text.startsWith("_")));
     if (errArm && scrut.type === "call_expression") {
       const f = scrut.childForFieldName("function");
       if (f?.type === "field_expression" && f.childForFieldName("field")?.text === "try_into" && this.isFixedSlice(f.childForFieldName("value"))) return true;
     }
-    if (p0?.text !== "_") return false;
+    if (norm(pat) !== "_") return false;
     // the largest value of the scrutinee
     let max = maxOf(scrut, this.consts);
     if (max === undefined && scrut.type === "call_expression") {
