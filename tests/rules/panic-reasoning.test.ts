@@ -113,3 +113,26 @@ describe.skipIf(!have("rustc"))("rustc agrees on the edge inputs", () => {
     }
   }, 120_000);
 });
+
+// Issue 15, point 5: a Rust enum in a field of a struct C fills is advice (the mirror rules compare
+// the enums themselves); a C integer passed straight into a Rust enum parameter stays a warning.
+describe("enum-from-c-int: a field of a struct C fills is info", () => {
+  const files = (rust: string) => ({
+    "h.h": `#include <stdint.h>
+enum hyd_band { HYD_BAND_LOW = 0, HYD_BAND_HIGH = 1 };
+struct hyd_cfg { enum hyd_band band; uint32_t gain; };
+int32_t hyd_read_cfg(struct hyd_cfg *out);
+void hyd_set_band(enum hyd_band band);
+`,
+    "h.rs": rust,
+  });
+  it("the field C fills is reported at info; the parameter at warning", async () => {
+    const { findings } = await analyze(files(`#[repr(C)] #[derive(Clone, Copy)] pub enum HydBand { Low = 0, High = 1 }
+#[repr(C)] pub struct HydCfg { pub band: HydBand, pub gain: u32 }
+extern "C" { fn hyd_read_cfg(out: *mut HydCfg) -> i32; }
+#[no_mangle] pub extern "C" fn hyd_set_band(band: HydBand) { let _ = band; }
+`));
+    const e = findings.filter((f) => f.rule === "enum-from-c-int").map((f) => `${f.range.file.replace(/^\/ws\//, "")}:${f.range.line + 1} ${f.severity}`).sort();
+    expect(e).toEqual(["h.rs:2 info", "h.rs:4 warning"]);
+  });
+});
