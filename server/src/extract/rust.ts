@@ -378,6 +378,11 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           const name = n.childForFieldName("name")?.text;
           const v = evalConst(n.childForFieldName("value"), ctx.consts);
           if (name && name !== "_" && v !== null) ctx.consts.set(name, v);
+          // the length of a const/static array (`[f32; 8]`): body facts read it (panic-across-c-abi
+          // bounds an index by it), so it is part of the item cache key with the integer consts
+          const at = n.childForFieldName("type");
+          const len = at?.type === "array_type" ? evalConst(at.childForFieldName("length"), ctx.consts) : null;
+          if (name && name !== "_" && len !== null) ctx.consts.set(`${name}[]`, len);
           break;
         }
         case "mod_item":

@@ -40,11 +40,26 @@ export interface RustRelease {
   nullableParam?: boolean;
 }
 
+/** A site inside a closure passed as argument `arg` (0-based, the receiver not counted) of the
+ * call at `call`: a crate helper that runs that argument under catch_unwind protects it. */
+export interface RustUnder {
+  call: Range;
+  arg: number;
+}
+
 export interface RustPanic {
   kind: "unwrap" | "expect" | "panic" | "unreachable" | "todo" | "assert" | "index" | "overflow" | "division" | "borrow_mut";
   text: string;
   range: Range;
   protected: boolean;
+  /** "warning": an explicit panic on a value C hands over (a pointer, a string conversion, a
+   * parameter), `panic!`/`unreachable!`/`assert!` on runtime values; "info": a possible overflow,
+   * out-of-range index or division with no guard seen, an unwrap of internal state. */
+  level?: "warning" | "info";
+  /** A warning only on call paths where one of these parameters (bit i = parameter i, `self` not
+   * counted) carries a value C handed over; info on the others. Absent: `level` as it is. */
+  taint?: number;
+  under?: RustUnder[];
 }
 
 export interface RustCall {
@@ -53,6 +68,14 @@ export interface RustCall {
   args: RustArg[];
   range: Range;
   protected: boolean;
+  /** Method call: the receiver's type when the body shows it (`self`, a typed parameter or
+   * local, `(*p)` with `p: *mut T`); `Self` already replaced by the impl's type. */
+  recv?: string;
+  /** Path call `Head::name(…)`: the last segment of the path before the name (`Self` replaced). */
+  head?: string;
+  /** Per argument (the receiver not counted): the caller's parameters it reads (bitmask). */
+  argTaint?: number[];
+  under?: RustUnder[];
 }
 
 export interface RustOwnFacts {
@@ -68,6 +91,12 @@ export interface RustOwnFacts {
   panics: RustPanic[];
   calls: RustCall[];
   catchUnwind: boolean;
+  /** The type of the `impl` block the function is in (`impl Det` / `impl Trait for Det` → "Det"). */
+  implType?: string;
+  /** The trait of that impl block (`impl Write for Det` → "Write"). */
+  traitName?: string;
+  /** Indices of parameters the body runs under catch_unwind (`catch_unwind(f)`, a closure calling `f`). */
+  catchParams?: number[];
 }
 
 // ---- C / C++ ----

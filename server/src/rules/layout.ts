@@ -422,11 +422,11 @@ function cIntegerish(model: Model, t: AbiType): boolean {
   return false;
 }
 
-function enumWarning(model: Model, e: TypeDecl, where: string, range: Range, cType: AbiType, cRange: Range, out: Finding[]): void {
+function enumWarning(model: Model, e: TypeDecl, where: string, range: Range, cType: AbiType, cRange: Range, out: Finding[], advice = false): void {
   const vals = e.enumerators.map((x) => x.value).filter((v): v is number => v !== null);
   const shown = vals.length <= 6 ? vals.join(", ") : `${vals.slice(0, 5).join(", ")}, …`;
   const ct = spellType(model.resolve(cType, "c"), "c");
-  out.push(finding(ENUM_FROM_C_INT, range, `${where} receives C \`${ct}\` as Rust enum \`${e.name}\`: any value other than ${shown} is undefined behaviour in Rust; receive the integer and convert it with a match or TryFrom`, [{ range: cRange, message: `C side (\`${ct}\`)` }], { data: { enum: e.id } }));
+  out.push(finding(ENUM_FROM_C_INT, range, `${where} receives C \`${ct}\` as Rust enum \`${e.name}\`: any value other than ${shown} is undefined behaviour in Rust; receive the integer and convert it with a match or TryFrom`, [{ range: cRange, message: `C side (\`${ct}\`)` }], advice ? { data: { enum: e.id }, severity: "info" } : { data: { enum: e.id } }));
 }
 
 /**
@@ -506,7 +506,9 @@ function checkEnumInputs(model: Model, pairs: Pair[], out: Finding[]): void {
       const rf = p.rust.fields[i]!;
       const cf = p.c.fields[i]!;
       const e = rustEnum(model, rf.type);
-      if (e && cIntegerish(model, cf.type)) enumWarning(model, e, `field \`${rf.name}\` of \`${p.rust.name}\``, rf.range, cf.type, cf.range, out);
+      // A field of a struct C fills: C writes whatever its enum holds, and the values usually agree
+      // (the mirror rules compare them); reading it as a Rust enum is advice, not a defect seen.
+      if (e && cIntegerish(model, cf.type)) enumWarning(model, e, `field \`${rf.name}\` of \`${p.rust.name}\``, rf.range, cf.type, cf.range, out, true);
     }
   }
 }

@@ -19,7 +19,7 @@
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range } from "../model/types.js";
-import type { CArg, CClass, CEvent, CFlow, COwnFacts, CRef, DeleterArg, OwnHow, RustArg, RustOwnFacts, UniquePtrDecl } from "../model/ownership.js";
+import type { CArg, CClass, CEvent, CFlow, COwnFacts, CRef, DeleterArg, OwnHow, RustArg, RustCall, RustOwnFacts, RustPanic, UniquePtrDecl } from "../model/ownership.js";
 import { finding, type Finding, type GatheredItem, type Related, type RuleFamily, type RuleMeta } from "./api.js";
 
 // ------------------------------------------------------------------ rule metadata
@@ -200,6 +200,39 @@ function before(a: Range, b: Range): boolean {
   return a.line < b.line || (a.line === b.line && a.col < b.col);
 }
 
+/** Methods of the standard library's common types and traits (Iterator, Option/Result, Vec,
+ * slices, str/String, maps, io::Read/Write, From/Into, Default, Clone…): a call of one of these on
+ * a receiver whose type the body does not show is taken to be the standard library's, not a
+ * crate function that happens to share the name. */
+const STD_METHODS = new Set([
+  "iter", "iter_mut", "into_iter", "map", "filter", "filter_map", "flat_map", "fold", "collect", "enumerate", "zip", "chain", "rev", "take", "skip",
+  "step_by", "next", "nth", "last", "count", "sum", "product", "min", "max", "min_by", "max_by", "min_by_key", "max_by_key", "any", "all", "find",
+  "position", "for_each", "peekable", "cloned", "copied", "chunks", "chunks_exact", "windows", "split", "split_at", "split_at_mut", "first", "last_mut",
+  "get", "get_mut", "insert", "remove", "contains", "contains_key", "push", "pop", "push_back", "push_front", "pop_back", "pop_front", "front", "back",
+  "len", "is_empty", "clear", "extend", "extend_from_slice", "truncate", "resize", "reserve", "drain", "retain", "sort", "sort_by", "sort_unstable",
+  "dedup", "swap", "fill", "copy_from_slice", "clone_from_slice", "as_slice", "as_mut_slice", "as_ptr", "as_mut_ptr", "to_vec", "into_boxed_slice",
+  "unwrap", "expect", "unwrap_or", "unwrap_or_else", "unwrap_or_default", "ok", "err", "ok_or", "ok_or_else", "and_then", "or_else", "map_err",
+  "as_ref", "as_mut", "as_deref", "take", "replace", "is_some", "is_none", "is_ok", "is_err",
+  "into", "from", "try_into", "try_from", "default", "clone", "to_owned", "to_string", "fmt", "eq", "ne", "cmp", "partial_cmp", "hash", "borrow",
+  "read", "write", "read_exact", "write_all", "flush", "seek", "read_to_end", "read_to_string", "lock", "try_lock", "send", "recv", "join", "spawn",
+  "to_str", "as_str", "as_bytes", "to_bytes", "trim", "parse", "starts_with", "ends_with", "chars", "bytes", "lines", "deref", "deref_mut", "drop",
+  "load", "store", "fetch_add", "fetch_sub", "swap", "compare_exchange", "set", "with", "call", "apply", "add", "sub", "mul", "div", "index", "index_mut",
+]);
+/** Standard traits: an impl of one of these is reached through a value of its type (or the trait
+ * path), never by a method name alone on a receiver of unknown type. */
+const STD_TRAITS = new Set(["Write", "Read", "BufRead", "Seek", "Iterator", "IntoIterator", "DoubleEndedIterator", "ExactSizeIterator", "Extend",
+  "FromIterator", "From", "Into", "TryFrom", "TryInto", "FromStr", "Default", "Clone", "Display", "Debug", "Drop", "Deref", "DerefMut", "AsRef",
+  "AsMut", "Borrow", "BorrowMut", "Index", "IndexMut", "PartialEq", "Eq", "PartialOrd", "Ord", "Hash", "Hasher", "Add", "Sub", "Mul", "Div", "Rem",
+  "AddAssign", "SubAssign", "MulAssign", "Neg", "Not", "BitAnd", "BitOr", "Shl", "Shr", "Future", "Error", "ToString", "Fn", "FnMut", "FnOnce", "Sum"]);
+
+/**
+ * Functions of the crate by name, and the call → function resolution the body rules follow: a
+ * method call goes to a method of the receiver's type when the body shows that type (`self`, a
+ * typed parameter or local), else to the one method of that name unless the name is a common
+ * standard-library method or the only candidate implements a standard trait; a path call
+ * `Type::f(…)` goes to `f` of that type's impl blocks; a bare or module-path call to a free function
+ * (same file first).
+ */
 class CrateIndex {
   byName = new Map<string, FnDecl[]>();
   constructor(model: Model) {
@@ -210,11 +243,27 @@ class CrateIndex {
       this.byName.set(f.name, a);
     }
   }
-  resolve(from: FnDecl, callee: string, method: boolean): FnDecl | undefined {
-    const c = (this.byName.get(callee) ?? []).filter((f) => (method ? own(f)!.hasSelf : !own(f)!.hasSelf));
-    if (c.length === 0) return undefined;
-    if (method) return c.length === 1 ? c[0] : undefined;
-    return c.find((f) => f.file === from.file) ?? (c.length === 1 ? c[0] : undefined);
+  resolve(from: FnDecl, c: Pick<RustCall, "callee" | "method" | "recv" | "head">): FnDecl | undefined {
+    const callee = c.callee;
+    const all = this.byName.get(callee) ?? [];
+    if (!all.length) return undefined;
+    const pick = (xs: FnDecl[]) => xs.find((f) => f.file === from.file) ?? (xs.length === 1 ? xs[0] : undefined);
+    if (c.method) {
+      const cands = all.filter((f) => own(f)!.hasSelf);
+      if (c.recv) return pick(cands.filter((f) => own(f)!.implType === c.recv));
+      if (STD_METHODS.has(callee)) return undefined;
+      const plain = cands.filter((f) => !STD_TRAITS.has(own(f)!.traitName ?? ""));
+      return plain.length === 1 ? plain[0] : undefined;
+    }
+    const cands = all.filter((f) => !own(f)!.hasSelf);
+    const head = c.head;
+    if (head && /^[A-Z]/.test(head)) {
+      // `Type::f(…)`: an associated function of that type; a standard trait's path (`Default::default`)
+      // names no type
+      if (STD_TRAITS.has(head)) return undefined;
+      return pick(cands.filter((f) => own(f)!.implType === head || own(f)!.traitName === head));
+    }
+    return pick(cands.filter((f) => !own(f)!.implType));
   }
 }
 
@@ -242,7 +291,7 @@ function releasesOf(fn: FnDecl, idx: CrateIndex, depth = 0, seen = new Set<strin
     });
   }
   for (const c of o.calls) {
-    const h = idx.resolve(fn, c.callee, c.method);
+    const h = idx.resolve(fn, c);
     if (!h || h === fn) continue;
     for (const r of releasesOf(h, idx, depth + 1, seen)) {
       const a = c.args[c.method && own(h)!.hasSelf ? r.param + 1 : r.param];
@@ -268,7 +317,7 @@ function producesOf(fn: FnDecl, idx: CrateIndex, depth = 0, seen = new Set<strin
   const out: ProdRaw[] = o.produces.map((p) => ({ how: p.how, inner: p.inner, site: p.range, chain: [] }));
   if (!out.length) {
     for (const c of o.calls) {
-      const h = idx.resolve(fn, c.callee, c.method);
+      const h = idx.resolve(fn, c);
       if (!h || h === fn) continue;
       for (const p of producesOf(h, idx, depth + 1, seen)) out.push({ ...p, site: c.range, chain: [h.name, ...p.chain] });
     }
@@ -483,14 +532,30 @@ function indistinctFindings(items: GatheredItem[]): Finding[] {
 
 const PANIC_ABIS_UNWIND = /-unwind$/;
 
-function unprotected(o: RustOwnFacts) {
-  return o.panics.filter((p) => !p.protected);
+type Site = RustPanic & { eff: "warning" | "info" };
+
+/** `#[cfg(debug_assertions)]` (attribute text, which the grammar leaves opaque): the function
+ * exists in debug builds only. */
+function debugOnly(fn: FnDecl): boolean {
+  return fn.attrs.some((a) => /cfg\s*\(\s*debug_assertions\s*\)/.test(a));
+}
+
+/** A site's level on a call path where the parameters in `active` carry C's values. */
+function effLevel(fn: FnDecl, p: RustPanic, active: number): "warning" | "info" {
+  const base = p.level ?? (["index", "overflow", "division", "borrow_mut"].includes(p.kind) ? "info" : "warning");
+  if (base === "info" || debugOnly(fn)) return "info";
+  if (p.taint !== undefined && (p.taint & active) === 0) return "info";
+  return "warning";
+}
+
+function levelOf(p: Site): "warning" | "info" {
+  return p.eff;
 }
 
 function panicKindText(k: string): string {
   switch (k) {
     case "index": return "indexing (out of bounds panics)";
-    case "overflow": return "integer arithmetic (overflow panics in debug builds)";
+    case "overflow": return "integer arithmetic (overflow panics where overflow checks are on: debug builds, or `overflow-checks = true`)";
     case "division": return "integer division (division by zero panics)";
     case "borrow_mut": return "`RefCell::borrow_mut` (panics when already borrowed)";
     case "unwrap": return "`unwrap()`";
@@ -499,54 +564,109 @@ function panicKindText(k: string): string {
   }
 }
 
+/**
+ * panic-across-c-abi. A site counts unless it is inside catch_unwind (directly, or inside a
+ * closure handed to a crate helper that runs that parameter under catch_unwind), and helpers are
+ * followed through calls the CrateIndex resolves by the receiver's type. The finding is a warning
+ * when some site is an explicit panic on a value C controls (the extractor's level), else `info`:
+ * an overflow, index or division no guard rules out, which panics only on inputs the code
+ * otherwise handles.
+ */
 function checkPanics(model: Model, out: Finding[]): void {
   const idx = new CrateIndex(model);
-  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>): { chain: FnDecl[]; site: RustOwnFacts["panics"][number] } | undefined => {
+  const callsByRange = new Map<FnDecl, Map<string, RustCall>>();
+  const key = (r: Range) => `${r.line}:${r.col}`;
+  /** Whether a site or call of `fn` runs inside a closure a catching helper takes. */
+  const caught = (fn: FnDecl, x: { under?: RustOwnFacts["panics"][number]["under"] }): boolean => {
+    if (!x.under) return false;
+    let m = callsByRange.get(fn);
+    if (!m) {
+      m = new Map(own(fn)!.calls.map((c) => [key(c.range), c]));
+      callsByRange.set(fn, m);
+    }
+    for (const u of x.under) {
+      const c = m.get(key(u.call));
+      const h = c ? idx.resolve(fn, c) : undefined;
+      if (h && own(h)?.catchParams?.includes(u.arg)) return true;
+    }
+    return false;
+  };
+  const live = (fn: FnDecl, o: RustOwnFacts, active: number): Site[] =>
+    o.panics.filter((p) => !p.protected && !caught(fn, p)).map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
+  /** The callee's parameters that carry C's values: those whose argument reads an active one. */
+  const passOn = (c: RustCall, active: number): number => {
+    let m = 0;
+    (c.argTaint ?? []).forEach((t, j) => { if (j < 30 && (t & active)) m |= 1 << j; });
+    return m;
+  };
+  type Hit = { chain: FnDecl[]; site: Site };
+  const memo = new Map<string, Hit | null>();
+  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>, active: number): Hit | undefined => {
     const o = own(fn);
     if (!o || depth > 6 || seen.has(fn.id)) return undefined;
+    const mk = `${fn.id}|${active}`;
+    if (memo.has(mk)) return memo.get(mk) ?? undefined;
     seen.add(fn.id);
-    const p = unprotected(o)[0];
-    if (p) return { chain: [fn], site: p };
-    for (const c of o.calls) {
-      if (c.protected) continue;
-      const h = idx.resolve(fn, c.callee, c.method);
-      if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-      const r = helperPanics(h, depth + 1, seen);
-      if (r) return { chain: [fn, ...r.chain], site: r.site };
+    const sites = live(fn, o, active);
+    let best: Hit | undefined;
+    const w = sites.find((p) => levelOf(p) === "warning");
+    if (w) best = { chain: [fn], site: w };
+    else {
+      if (sites[0]) best = { chain: [fn], site: sites[0] };
+      for (const c of o.calls) {
+        if (c.protected || caught(fn, c)) continue;
+        const h = idx.resolve(fn, c);
+        if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
+        const r = helperPanics(h, depth + 1, seen, passOn(c, active));
+        if (r && (!best || (levelOf(r.site) === "warning" && levelOf(best.site) !== "warning"))) best = { chain: [fn, ...r.chain], site: r.site };
+        if (best && levelOf(best.site) === "warning") break;
+      }
     }
-    return undefined;
+    seen.delete(fn.id);
+    memo.set(mk, best ?? null);
+    return best;
   };
   for (const fn of model.allFns()) {
     if (fn.lang !== "rust" || fn.role !== "export" || !fn.isExtern || fn.abi === "Rust" || PANIC_ABIS_UNWIND.test(fn.abi)) continue;
     const o = own(fn);
     if (!o) continue;
-    const direct = unprotected(o);
-    const viaHelpers: { call: Range; chain: FnDecl[]; site: RustOwnFacts["panics"][number] }[] = [];
+    // every parameter of the exported function is C's
+    const all = -1;
+    const direct = live(fn, o, all);
+    const viaHelpers: { call: Range; chain: FnDecl[]; site: Site }[] = [];
     for (const c of o.calls) {
-      if (c.protected) continue;
-      const h = idx.resolve(fn, c.callee, c.method);
+      if (c.protected || caught(fn, c)) continue;
+      const h = idx.resolve(fn, c);
       if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-      const r = helperPanics(h, 1, new Set([fn.id]));
+      const r = helperPanics(h, 1, new Set([fn.id]), passOn(c, all));
       if (r) viaHelpers.push({ call: c.range, chain: r.chain, site: r.site });
     }
     if (!direct.length && !viaHelpers.length) continue;
-    const first = [...direct.map((d) => d.range), ...viaHelpers.map((v) => v.call)].sort((a, b) => (before(a, b) ? -1 : 1))[0]!;
-    const kinds = [...new Set(direct.map((d) => d.kind))].map(panicKindText);
+    const warn = direct.some((d) => levelOf(d) === "warning") || viaHelpers.some((v) => levelOf(v.site) === "warning");
+    // warnings first: the message and the related places lead with the explicit panics
+    const rank = (x: Site) => (levelOf(x) === "warning" ? 0 : 1);
+    const dSorted = [...direct].sort((a, b) => rank(a) - rank(b));
+    const vSorted = [...viaHelpers].sort((a, b) => rank(a.site) - rank(b.site));
+    const firstOf = warn ? [...direct.filter((d) => levelOf(d) === "warning").map((d) => d.range), ...viaHelpers.filter((v) => levelOf(v.site) === "warning").map((v) => v.call)]
+      : [...direct.map((d) => d.range), ...viaHelpers.map((v) => v.call)];
+    const first = firstOf.sort((a, b) => (before(a, b) ? -1 : 1))[0]!;
+    const kinds = [...new Set(dSorted.map((d) => d.kind))].map(panicKindText);
     const parts: string[] = [];
     if (kinds.length) parts.push(kinds.join(", "));
-    for (const v of viaHelpers.slice(0, 3)) {
+    for (const v of vSorted.slice(0, 3)) {
       parts.push(`${panicKindText(v.site.kind)} in ${[fn.name, ...v.chain.map((c) => c.name)].map((n) => `\`${n}\``).join(" → ")} (line ${v.site.range.line + 1})`);
     }
     const related: Related[] = [
-      ...direct.slice(0, 8).map((d) => ({ range: d.range, message: `can panic: ${d.text}` })),
-      ...viaHelpers.slice(0, 4).flatMap((v) => [
+      ...dSorted.slice(0, 8).map((d) => ({ range: d.range, message: `can panic: ${d.text}` })),
+      ...vSorted.slice(0, 4).flatMap((v) => [
         ...v.chain.map((h) => ({ range: h.nameRange, message: `called: \`${h.name}\`` })),
         { range: v.site.range, message: `can panic: ${v.site.text}` },
       ]),
     ];
+    const tail = warn ? "" : " (no guard seen in the code; these panic only on inputs outside the range the code otherwise handles)";
     out.push(finding(PANIC_ACROSS, first,
-      `\`${fn.name}\` is \`extern "${fn.abi}"\` and can panic without \`catch_unwind\`: ${parts.join("; ")}; since Rust 1.81 such a panic aborts the whole process`,
-      related, { data: { fn: fn.id, chain: viaHelpers[0]?.chain.map((c) => c.name) ?? [] } }));
+      `\`${fn.name}\` is \`extern "${fn.abi}"\` and can panic without \`catch_unwind\`: ${parts.join("; ")}${tail}; since Rust 1.81 such a panic aborts the whole process`,
+      related, { data: { fn: fn.id, chain: vSorted[0]?.chain.map((c) => c.name) ?? [] }, ...(warn ? {} : { severity: "info" as const }) }));
   }
 }
 

@@ -23,6 +23,8 @@ import type {
 } from "../../model/ownership.js";
 import { indexSubtree, rangeOf, walk, walkFile, walkTypes } from "../common.js";
 import { bodyWalkTypes, cFileExtractors, rustExtractors } from "../hooks.js";
+import { evalConst } from "../common.js";
+import { PanicSense, modBoundedLocals } from "./panic-sense.js";
 
 // ---------------------------------------------------------------- Rust
 
@@ -30,7 +32,8 @@ const INT_PRIMS = new Set(["i8", "u8", "i16", "u16", "i32", "u32", "i64", "u64",
   "c_int", "c_uint", "c_long", "c_ulong", "c_short", "c_ushort", "c_longlong", "c_ulonglong", "size_t", "c_char", "c_uchar", "c_schar"]);
 
 /** The node types extractRustFn's body walk acts on (the others are found inside wasm). */
-const RUST_VISITED = ["function_item", "impl_item", "mod_item", "let_declaration", "let_condition", "reference_expression", "macro_invocation", "index_expression", "binary_expression", "compound_assignment_expr", "call_expression"];
+const RUST_VISITED = ["function_item", "impl_item", "mod_item", "let_declaration", "let_condition", "reference_expression", "macro_invocation", "index_expression", "binary_expression", "compound_assignment_expr", "call_expression",
+  "const_item", "static_item", "block", "if_expression", "while_expression", "for_expression", "assignment_expression"];
 for (const t of RUST_VISITED) bodyWalkTypes.rust.add(t);
 const PANIC_MACROS: Record<string, RustOwnFacts["panics"][number]["kind"]> = {
   panic: "panic", unreachable: "unreachable", todo: "todo", unimplemented: "todo",
@@ -103,38 +106,27 @@ function isSliceLengthProduct(n: Node): boolean {
   return name === "from_raw_parts" || name === "from_raw_parts_mut";
 }
 
-/**
- * `a - k` / `a - b` inside the branch of an `if` whose condition (or one `&&` operand of it)
- * says `a > j` (j >= k - 1), `a >= j` (j >= k), `a != 0` (k = 1), or `a > b` / `a >= b` (also
- * written the other way round): the subtraction cannot underflow there.
- */
-function isGuardedSub(n: Node): boolean {
-  const a = unparen(n.childForFieldName("left"));
-  const b = unparen(n.childForFieldName("right"));
-  if (a?.type !== "identifier" || !b) return false;
-  const k = intLit(b);
-  const bName = b.type === "identifier" ? b.text : undefined;
-  if (k === undefined && !bName) return false;
-  const says = (c: Node | null | undefined): boolean => {
-    const u = unparen(c);
-    if (u?.type !== "binary_expression") return false;
-    let op = (u.childForFieldName("operator") ?? u.child(1))?.text ?? "";
-    if (op === "&&") return says(u.childForFieldName("left")) || says(u.childForFieldName("right"));
-    let l = unparen(u.childForFieldName("left"));
-    let r = unparen(u.childForFieldName("right"));
-    const flip: Record<string, string> = { "<": ">", "<=": ">=" };
-    if (flip[op]) { [l, r] = [r, l]; op = flip[op]; }
-    if (l?.type !== "identifier" || l.text !== a.text || !r) return false;
-    if (bName) return (op === ">" || op === ">=") && r.type === "identifier" && r.text === bName;
-    const j = intLit(r);
-    if (j === undefined || k === undefined) return false;
-    return (op === ">" && j >= k - 1) || (op === ">=" && j >= k) || (op === "!=" && j === 0 && k === 1);
-  };
-  for (let c: Node = n, p = n.parent; p; c = p, p = p.parent) {
-    if (p.type === "function_item" || p.type === "closure_expression") return false;
-    if (p.type === "if_expression" && p.childForFieldName("consequence")?.id === c.id && says(p.childForFieldName("condition"))) return true;
+/** The file's integer consts (`const N: usize = 16;`), once per tree. The item cache keys every
+ * item by these too, so facts read from them stay valid when the item is reused. */
+const fileConsts = new WeakMap<object, Map<string, number>>();
+function constsOf(n: Node): Map<string, number> {
+  const tree = (n as unknown as { tree: object }).tree;
+  let m = fileConsts.get(tree);
+  if (!m) {
+    m = new Map();
+    const root = (tree as { rootNode: Node }).rootNode;
+    for (const c of root.descendantsOfType(["const_item", "static_item"])) {
+      const name = c.childForFieldName("name")?.text;
+      const v = evalConst(c.childForFieldName("value"), m);
+      if (name && v !== null && !m.has(name)) m.set(name, v);
+      // `NAME[]`: the length of a const/static array (also in the item cache key, see extractRust)
+      const at = c.childForFieldName("type");
+      const len = at?.type === "array_type" ? evalConst(at.childForFieldName("length"), m) : null;
+      if (name && len !== null && !m.has(`${name}[]`)) m.set(`${name}[]`, len);
+    }
+    fileConsts.set(tree, m);
   }
-  return false;
+  return m;
 }
 
 function pointeeName(typeText: string | undefined): string | undefined {
@@ -152,6 +144,20 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     hasSelf: !!fnNode.childForFieldName("parameters")?.namedChildren.some((c) => c.type === "self_parameter"),
     bodyRange: rangeOf(file, body),
     produces: [], releases: [], borrows: [], nullChecks: [], reLeaks: [], panics: [], calls: [], catchUnwind: false,
+  };
+  const consts = constsOf(fnNode);
+  const sense = new PanicSense(fnNode, (name) => consts.get(name));
+  for (const [k, v] of modBoundedLocals(body)) sense.vf.modBounded.set(k, v);
+  if (sense.implType) own.implType = sense.implType;
+  if (sense.traitName) own.traitName = sense.traitName;
+  const paramNames = fn.params.map((p) => p.name);
+  /** Records a panic site unless it cannot panic; `level` from the sense's reasoning. */
+  const site = (kind: RustOwnFacts["panics"][number]["kind"], text: string, n: Node, level: "warning" | "info", taint?: number) => {
+    const p: RustOwnFacts["panics"][number] = { kind, text, range: rangeOf(file, n), protected: isProtected(n), level };
+    if (taint !== undefined) p.taint = taint;
+    const u = sense.underOf(n);
+    if (u) p.under = u;
+    own.panics.push(p);
   };
   const intNames = new Set<string>();
   for (const p of fn.params) {
@@ -277,6 +283,24 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
   walkTypes(body, RUST_VISITED, (n) => {
     if (n.type === "function_item" || n.type === "impl_item" || n.type === "mod_item") return false;
     switch (n.type) {
+      case "const_item":
+      case "static_item":
+        return false; // evaluated at compile time: a panic there is a build error
+      case "block":
+        sense.vf.onBlock(n);
+        return;
+      case "if_expression":
+        sense.vf.onIf(n);
+        return;
+      case "while_expression":
+        sense.vf.onWhile(n);
+        return;
+      case "for_expression":
+        sense.vf.onFor(n);
+        return;
+      case "assignment_expression":
+        sense.onAssign(n);
+        return;
       case "let_condition":
         aliasNonNull(n.childForFieldName("pattern"), n.childForFieldName("value"));
         return;
@@ -284,6 +308,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         const pat = n.childForFieldName("pattern");
         const val = n.childForFieldName("value");
         aliasNonNull(pat, val);
+        sense.onLet(n);
         const tt = n.childForFieldName("type");
         const name = pat?.type === "identifier" ? pat.text : pat?.type === "mut_pattern" ? pat.namedChild(0)?.text : undefined;
         if (name && tt?.type === "primitive_type" && INT_PRIMS.has(tt.text)) intNames.add(name);
@@ -306,11 +331,14 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       case "macro_invocation": {
         const mac = lastSeg(n.childForFieldName("macro")?.text ?? "");
         const kind = PANIC_MACROS[mac];
-        if (kind) own.panics.push({ kind, text: `${mac}!`, range: rangeOf(file, n), protected: isProtected(n) });
+        if (kind === "assert") {
+          const d = sense.assertDeps(n, mac);
+          if (d !== "const") site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
+        } else if (kind && !sense.armUnreachable(n)) site(kind, `${mac}!`, n, "warning", sense.branchTaint(n));
         return false; // token trees are not parsed
       }
       case "index_expression": {
-        own.panics.push({ kind: "index", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
+        if (sense.indexLevel(n)) site("index", n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, n, "info");
         return;
       }
       case "binary_expression":
@@ -322,11 +350,12 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
           (x.type === "type_cast_expression" && INT_PRIMS.has(lastSeg(x.childForFieldName("type")?.text ?? ""))));
         const isFloatLit = (x: Node | null) => x?.type === "float_literal";
         const base = op.replace(/=$/, "");
+        if (n.type === "compound_assignment_expr") sense.onAssign(n);
         if (["+", "-", "*"].includes(base) && (isInt(l) || isInt(r)) && !isFloatLit(l) && !isFloatLit(r) &&
-          !(op === "*" && isSliceLengthProduct(n)) && !(op === "-" && isGuardedSub(n))) {
-          own.panics.push({ kind: "overflow", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
+          !(op === "*" && isSliceLengthProduct(n))) {
+          if (sense.overflowLevel(n, base)) site("overflow", n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, n, "info");
         } else if (["/", "%"].includes(base) && isInt(r)) {
-          own.panics.push({ kind: "division", text: n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, range: rangeOf(file, n), protected: isProtected(n) });
+          if (sense.divisionLevel(n)) site("division", n.text.length > 40 ? n.text.slice(0, 37) + "…" : n.text, n, "info");
         }
         if ((op === "==" || op === "!=") && l && r) {
           const nullish = (x: Node) => x.type === "call_expression" && /(^|::)null(_mut)?$/.test(x.childForFieldName("function")?.text.replace(/\s+/g, "").replace(/::<.*>$/, "") ?? "");
@@ -352,6 +381,9 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     if (!f) return;
     const range = rangeOf(file, n);
     const prot = isProtected(n);
+    sense.onCall(n, range);
+    const under = sense.underOf(n);
+    const argTaint = args.map((a) => (sense.isConstExpr(a) ? 0 : sense.taintOf(a)));
     let fe = f;
     if (f.type === "generic_function") fe = f.childForFieldName("function") ?? f;
     if (fe.type === "field_expression") {
@@ -359,8 +391,13 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       const recv = fe.childForFieldName("value");
       const r = argRef(recv);
       switch (method) {
-        case "unwrap": case "expect": case "borrow_mut":
-          own.panics.push({ kind: method, text: `.${method}()`, range, protected: prot });
+        case "unwrap": case "expect": {
+          const lv = sense.unwrapLevel(n, recv);
+          if (lv) site(method, `.${method}()`, n, lv.level, lv.taint);
+          return;
+        }
+        case "borrow_mut":
+          site(method, `.${method}()`, n, "info");
           return;
         case "is_null":
           if (r.ident) own.nullChecks.push({ ident: r.ident, range });
@@ -385,7 +422,12 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
           own.releases.push({ how: "drop_in_place", arg: r, range, calleeRange: rangeOf(file, fe) });
           return;
       }
-      own.calls.push({ callee: method, method: true, args: [r, ...args.map((a) => argRef(a))], range, protected: prot });
+      const call: RustOwnFacts["calls"][number] = { callee: method, method: true, args: [r, ...args.map((a) => argRef(a))], range, protected: prot };
+      const rt = sense.recvType(recv);
+      if (rt) call.recv = rt;
+      if (argTaint.some((t) => t)) call.argTaint = argTaint;
+      if (under) call.under = under;
+      own.calls.push(call);
       return;
     }
     const ftext = f.text.replace(/\s+/g, "");
@@ -393,6 +435,26 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       own.catchUnwind = true;
       const a = n.childForFieldName("arguments");
       if (a) protectedRanges.push(rangeOf(file, a));
+      // a helper that runs its closure parameter under catch_unwind: `catch_unwind(f)`,
+      // `catch_unwind(AssertUnwindSafe(f))`, `catch_unwind(|| f())`
+      let x: Node | null | undefined = args[0];
+      for (let i = 0; x && i < 4; i++) {
+        if (x.type === "call_expression" && /AssertUnwindSafe$/.test(x.childForFieldName("function")?.text ?? "")) x = x.childForFieldName("arguments")?.namedChildren.find((c) => !c.type.endsWith("comment"));
+        else if (x.type === "parenthesized_expression") x = x.namedChild(0);
+        else break;
+      }
+      const called: string[] = [];
+      if (x?.type === "identifier") called.push(x.text);
+      else if (x?.type === "closure_expression") {
+        for (const c of x.descendantsOfType("call_expression")) {
+          const cf = c.childForFieldName("function");
+          if (cf?.type === "identifier") called.push(cf.text);
+        }
+      }
+      for (const nm of called) {
+        const i = paramNames.indexOf(nm);
+        if (i >= 0) (own.catchParams ??= []).includes(i) || own.catchParams.push(i);
+      }
       return;
     }
     const pp = pathParts(f);
@@ -483,7 +545,15 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       return;
     }
     if (f.type === "identifier" || f.type === "scoped_identifier" || f.type === "generic_function") {
-      own.calls.push({ callee: lastSeg(pp?.name ?? f.text), method: false, args: args.map((a) => argRef(a)), range, protected: prot });
+      const call: RustOwnFacts["calls"][number] = { callee: lastSeg(pp?.name ?? f.text), method: false, args: args.map((a) => argRef(a)), range, protected: prot };
+      const inner = f.type === "generic_function" ? f.childForFieldName("function") : f;
+      if (inner?.type === "scoped_identifier") {
+        const h = sense.headOf(inner);
+        if (h) call.head = h;
+      }
+      if (argTaint.some((t) => t)) call.argTaint = argTaint;
+      if (under) call.under = under;
+      own.calls.push(call);
     }
   }
 
