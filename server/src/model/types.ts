@@ -183,6 +183,9 @@ export interface FileFacts {
   hasErrors: boolean;
   /** C/C++ header: content is wrapped for C++ (extern "C" under #ifdef __cplusplus or plain). */
   cppGuarded?: boolean;
+  /** C/C++: the tree holds constructs only C++ has (a class, a template), so a C compiler cannot
+   * read the file; a `.h` read with the C++ grammar because it gave fewer errors may still be C. */
+  cxxSyntax?: boolean;
   /** Free-form per-family facts (e.g. ports, suppressions). */
   extra: Record<string, unknown>;
   /** Rust: item-level macro invocations (`gain_kernel!(hyd_gain_f32, f32);`), which may define
