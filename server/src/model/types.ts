@@ -33,7 +33,12 @@ export type AbiType =
    * `optionOf`: an `Option<Name>` whose inner type is an alias the extractor cannot see yet; the
    * model resolves it (an alias of a fn pointer or reference makes it a nullable pointer).
    */
-  | { k: "unsafe"; text: string; why: string; optionOf?: AbiType }
+  /**
+   * `generic`: an instance of a generic type with type arguments (`WithOffset<*const u8>`); the
+   * type's declaration decides whether it has a C layout (#[repr(C)]/transparent, and arguments
+   * that have one).
+   */
+  | { k: "unsafe"; text: string; why: string; optionOf?: AbiType; generic?: { name: string; args: AbiType[] } }
   | { k: "unknown"; text: string };
 
 export interface Param {
