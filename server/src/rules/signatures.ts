@@ -139,7 +139,7 @@ function nullableFnFields(model: Model, out: Finding[]): void {
         `\`${rd.name}.${rf.name}\` is a non-nullable \`extern "C" fn\`, but C may leave \`${cd.name}.${cf.name}\` NULL (${why}); a NULL read as a Rust fn pointer is undefined behaviour: declare it \`Option<unsafe extern "C" fn(..)>\` and check it before calling`,
         [{ range: cf.range, message: `C field \`${cf.name}\` of \`${cd.name}\` (matched because ${p.via})` }],
         { data: { rustType: rd.id, cType: cd.id, field: i, diff: "nullable" } });
-      f.severity = "warning";
+      f.severity = p.weak ? "info" : "warning";
       out.push(f);
     }
   }
