@@ -410,6 +410,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           const next = kids[i + 1];
           const block = next?.type === "expression_statement" ? next.namedChild(0) : next?.type === "block" ? next : null;
           if (ext && block?.type === "block") {
+            if (attrsBefore(n).texts.some((t) => /^wasm_bindgen\b/.test(t))) { i++; break; } // JavaScript imports (see above)
             const s = ext.namedChildren.find((c) => c.type === "string_literal");
             readForeign(block, s ? s.text.replace(/"/g, "") : "C");
             i++;

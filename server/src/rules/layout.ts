@@ -483,6 +483,14 @@ function checkPair(model: Model, p: Pair, out: Finding[], reprReported: Set<stri
     checkEnumPair(model, p, out);
     return;
   }
+  // A Rust struct standing for a C union (common practice: Rust code emulating the union by its
+  // largest member, or bytes with accessors) holds the same bytes when it has the union's size and
+  // alignment on every target and its pieces fit inside the union.
+  if (rd.kind === "struct" && cd.kind === "union" && model.targets.every((t) => {
+    const a = declLayout(rd, { model, side: "rust", triple: t });
+    const b = declLayout(cd, { model, side: "c", triple: t });
+    return !a.unknown && !b.unknown && a.size === b.size && a.align === b.align && flatEqual(model, p, t);
+  })) return;
   if (rd.kind !== cd.kind) {
     out.push(finding(MIRROR_MISMATCH, rd.nameRange, `\`${rd.name}\` is a Rust ${rd.kind} but C \`${cName(cd)}\` is a ${cd.kind} (${p.via})`, related, { data: { rust: rd.id, c: cd.id } }));
     return;
