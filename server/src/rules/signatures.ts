@@ -154,6 +154,7 @@ export function compareSignatures(model: Model, rust: FnDecl, c: FnDecl): Findin
       const d = diffs.find((x) => out[k]!.data?.diff === x.kind && out[k]!.message.includes(x.detail));
       const s = d && sev.get(d);
       if (s) out[k]!.severity = s;
+      if (s === "info" && d) out[k]!.message += d.rustWrites ? "; C promises not to write through it, so nothing Rust lends is at risk (advice)" : "; Rust only reads through it, so nothing C holds changes (advice: the header could say const)";
     }
   }
   report(out, model, compareTypes(model, rust.ret, c.ret, targets), "return type", rust, c, rust.retRange ?? rust.nameRange, c.retRange ?? c.nameRange, { ret: true }, true);
