@@ -201,7 +201,11 @@ function computePairs(model: Model): Pair[] {
     const cs = cByNorm.get(normName(d.name)) ?? [];
     if (cs.length !== 1 || (cs[0]!.kind === "enum") !== (d.kind === "enum")) continue;
     const key = `${d.id}|${cs[0]!.id}`;
-    if (pairs.has(key) || pairedRust.has(d.id)) continue;
+    if (pairs.has(key)) {
+      add(d, cs[0]!, "they have the same name", false); // the same pair: also named alike (it crosses as the C type's twin)
+      continue;
+    }
+    if (pairedRust.has(d.id)) continue; // a signature pairs it with another C type: that one is its mirror
     add(d, cs[0]!, "they have the same name", false);
     const np = pairs.get(key)!;
     if (!seamTypes(model).has(d.id)) np.weak = true;
