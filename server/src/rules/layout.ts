@@ -7,7 +7,11 @@
 //  2. a function signature: parameter i (or the return) of a Rust extern fn and of the C
 //     declaration of the same symbol name aggregates, by value or through the same number of
 //     pointer levels;
-//  3. the same name after normalisation (`SonarFrameHdr` ~ `sonar_frame_hdr_t`).
+//  3. the same name after normalisation (`SonarFrameHdr` ~ `sonar_frame_hdr_t`), for a Rust type
+//     no signature pairs with another C type. Such a pair is weak (its findings are `info`) unless
+//     a seam function's signature names the Rust type: sharing a name is no evidence the two ever
+//     meet (a Rust port beside the C it replaced, a Rust API type beside a C test helper).
+// A name declared in several files is read from the declaration nearest the file that names it.
 // Layout facts come from model/layout.ts (checked against clang/gcc/rustc by
 // tests/layout.oracle.test.ts); the Rust Reference ("Type layout") says a repr(C) type is laid out
 // like the C type, and ("Behavior considered undefined") that an invalid enum discriminant is
