@@ -3,7 +3,7 @@ import * as fs from "node:fs";
 import * as os from "node:os";
 import * as path from "node:path";
 import { execFileSync } from "node:child_process";
-import { analyze, checkDir, FIXTURES } from "../helpers/analyze.js";
+import { analyze, at, checkDir, FIXTURES } from "../helpers/analyze.js";
 import { rustValuesCross } from "../helpers/rust-cross";
 import type { Triple } from "../../server/src/model/targets";
 
@@ -244,4 +244,26 @@ _Static_assert(sizeof(seis_stage) == ${stage}, "stage");
       }
     });
   }
+});
+
+// Two Rust modules each declare a `Stats`; the exported function's own module's `Stats` is the one
+// its signature names (Rust Reference, "Paths": a name resolves in the module that uses it).
+describe("a name declared in two modules pairs by the nearest declaration", () => {
+  const header = `#include <stdint.h>
+typedef struct { uint64_t frames; uint64_t dropped; } hyd_link_stats;
+void hyd_link_stats_get(const void *link, hyd_link_stats *out);
+`;
+  const api = "pub struct Stats { pub frames: usize, pub history: Vec<u64> }\n";
+  const ffi = (repr: string) => `${repr}pub struct Stats { frames: u64, dropped: u64 }
+#[no_mangle]
+pub unsafe extern "C" fn hyd_link_stats_get(link: *const u8, out: *mut Stats) { let _ = link; (*out).frames = 0; (*out).dropped = 0; }
+`;
+  test("the module's own #[repr(C)] Stats mirrors the C struct: nothing", async () => {
+    const { findings } = await analyze({ "link.h": header, "src/stats.rs": api, "src/link/ffi.rs": ffi("#[repr(C)]\n") });
+    expect(findings.filter((f) => f.severity !== "info")).toEqual([]);
+  });
+  test("the module's own Stats without #[repr(C)] is reported, not the other module's", async () => {
+    const { findings } = await analyze({ "link.h": header, "src/stats.rs": api, "src/link/ffi.rs": ffi("") });
+    expect(at(findings, "mirror-not-repr-c")).toEqual(["src/link/ffi.rs:1"]);
+  });
 });
