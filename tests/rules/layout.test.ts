@@ -1,5 +1,15 @@
 import { describe, expect, test } from "vitest";
-import { analyze, checkDir } from "../helpers/analyze.js";
+import * as fs from "node:fs";
+import * as os from "node:os";
+import * as path from "node:path";
+import { execFileSync } from "node:child_process";
+import { analyze, at, checkDir, FIXTURES } from "../helpers/analyze.js";
+import { rustValuesCross } from "../helpers/rust-cross";
+import type { Triple } from "../../server/src/model/targets";
+
+function haveTool(tool: string): boolean {
+  try { execFileSync("which", [tool], { stdio: "pipe" }); return true; } catch { return false; }
+}
 
 // Facts behind the per-target expectations (each checked against clang/gcc in
 // tests/targets.oracle.test.ts and tests/layout.oracle.test.ts):
@@ -183,5 +193,77 @@ describe("layout family: layout-not-portable", () => {
   test("good: the status word is a plain integer", async () => {
     const { lines } = await checkDir("layout/layout-not-portable/good");
     expect(lines).toEqual([]);
+  });
+});
+
+// Types paired through the signatures that pass them (issue 15, point 4): a Rust struct and a C
+// struct at the same parameter are mirrors whatever their names; a same-name pair no seam function
+// passes is advice (info); enums compare by member name after the shared prefix, without C's
+// trailing count enumerator; fields grouped differently (a Rust `Span { start, end }` for C's
+// `start, end`) or a union held by its array member are the same bytes. The oracle: rustc's layout
+// of the Rust types (tests/helpers/rust-cross.ts) equals gcc's of the C types on each target a
+// Debian cross compiler exists for (C11 6.7.2.1; Rust Reference, "The C representation").
+describe("mirror pairs by signature", () => {
+  const DIR = "layout/mirror-layout-mismatch/by-signature";
+  test("good: grouped fields, a union by its member, enum by member names with a count sentinel; the same-name test double is info only", async () => {
+    const { findings } = await checkDir(`${DIR}/good`);
+    expect(findings.filter((f) => f.severity !== "info").map((f) => `${f.rule} ${f.range.line + 1}`)).toEqual([]);
+    const info = findings.filter((f) => f.severity === "info");
+    expect(info.map((f) => `${f.rule} ${path.basename(f.range.file)}:${f.range.line + 1}`)).toEqual(["mirror-not-repr-c picker.rs:34"]);
+    expect(info[0]!.message).toContain("paired by name only");
+  });
+  test("bad: a pointer missing from the grouped span, a coefficient array twice the union, two enum values swapped by name", async () => {
+    const { findings } = await checkDir(`${DIR}/bad`);
+    const errs = findings.filter((f) => f.severity === "error").map((f) => `${f.rule} ${f.range.line + 1}`);
+    expect(errs).toEqual(["mirror-layout-mismatch 13", "mirror-layout-mismatch 21", "mirror-enum-mismatch 29"]);
+    expect(findings.find((f) => f.rule === "mirror-enum-mismatch")!.message).toContain("`SEIS_MODE_TRIGGER`, is 1");
+    expect(findings.find((f) => f.range.line + 1 === 13)!.related[0]!.message).toContain("both are parameter 1 of `seis_scan`");
+  });
+  const GCC: Partial<Record<Triple, string>> = { "x86_64-unknown-linux-gnu": "x86_64-linux-gnu-gcc", "i686-unknown-linux-gnu": "i686-linux-gnu-gcc", "aarch64-unknown-linux-gnu": "aarch64-linux-gnu-gcc", "armv7-unknown-linux-gnueabihf": "arm-linux-gnueabihf-gcc" };
+  for (const [triple, cc] of Object.entries(GCC) as [Triple, string][]) {
+    test.skipIf(!haveTool(cc) || !haveTool("rustc"))(`good fixture: rustc's Rust layout equals ${cc}'s C layout (${triple})`, () => {
+      const items = `#[repr(C)] pub struct Span { pub start: *const f32, pub end: *const f32 }
+#[repr(C)] pub struct SeisScanWindow { pub span: Span, pub n_ch: u32, pub gain_db: i32 }
+#[repr(C)] pub struct SeisStage { pub coef: [i16; 4], pub decim: u32 }
+`;
+      const [end, nCh, gain, win, decim, stage] = rustValuesCross(triple, items, ["offset_of!(Span, end)", "offset_of!(SeisScanWindow, n_ch)", "offset_of!(SeisScanWindow, gain_db)", "size_of::<SeisScanWindow>()", "offset_of!(SeisStage, decim)", "size_of::<SeisStage>()"]);
+      const probe = `#include "seis.h"
+_Static_assert(offsetof(seis_window, end) == ${end}, "end");
+_Static_assert(offsetof(seis_window, n_ch) == ${nCh}, "n_ch");
+_Static_assert(offsetof(seis_window, gain_db) == ${gain}, "gain_db");
+_Static_assert(sizeof(seis_window) == ${win}, "window");
+_Static_assert(offsetof(seis_stage, decim) == ${decim}, "decim");
+_Static_assert(sizeof(seis_stage) == ${stage}, "stage");
+`;
+      const tmp = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-seis-"));
+      try {
+        fs.writeFileSync(path.join(tmp, "probe.c"), probe);
+        execFileSync(cc, ["-std=c11", "-fsyntax-only", "-I", path.join(FIXTURES, DIR, "good"), path.join(tmp, "probe.c")], { stdio: "pipe" });
+      } finally {
+        fs.rmSync(tmp, { recursive: true, force: true });
+      }
+    });
+  }
+});
+
+// Two Rust modules each declare a `Stats`; the exported function's own module's `Stats` is the one
+// its signature names (Rust Reference, "Paths": a name resolves in the module that uses it).
+describe("a name declared in two modules pairs by the nearest declaration", () => {
+  const header = `#include <stdint.h>
+typedef struct { uint64_t frames; uint64_t dropped; } hyd_link_stats;
+void hyd_link_stats_get(const void *link, hyd_link_stats *out);
+`;
+  const api = "pub struct Stats { pub frames: usize, pub history: Vec<u64> }\n";
+  const ffi = (repr: string) => `${repr}pub struct Stats { frames: u64, dropped: u64 }
+#[no_mangle]
+pub unsafe extern "C" fn hyd_link_stats_get(link: *const u8, out: *mut Stats) { let _ = link; (*out).frames = 0; (*out).dropped = 0; }
+`;
+  test("the module's own #[repr(C)] Stats mirrors the C struct: nothing", async () => {
+    const { findings } = await analyze({ "link.h": header, "src/stats.rs": api, "src/link/ffi.rs": ffi("#[repr(C)]\n") });
+    expect(findings.filter((f) => f.severity !== "info")).toEqual([]);
+  });
+  test("the module's own Stats without #[repr(C)] is reported, not the other module's", async () => {
+    const { findings } = await analyze({ "link.h": header, "src/stats.rs": api, "src/link/ffi.rs": ffi("") });
+    expect(at(findings, "mirror-not-repr-c")).toEqual(["src/link/ffi.rs:1"]);
   });
 });

@@ -14,3 +14,20 @@ describe("linkage family", () => {
     expect(lines).toEqual([]);
   });
 });
+
+// A `.h` the C++ grammar reads with fewer errors than the C one (`_Alignas` in a field) is still a
+// C header: only a C++ translation unit including it (directly or through another header) makes
+// its declarations need extern "C". gcc and g++ show the same header compiling as either
+// language; only g++ mangles the name (C++ [dcl.link]: a function without C language linkage).
+describe("cxx-needs-c-linkage: C headers that only C files include", () => {
+  test("good: a C header chain included only by a .c file gives nothing", async () => {
+    const { lines } = await checkDir("linkage/cxx-needs-c-linkage/good");
+    expect(lines).toEqual([]);
+  });
+  test("bad: the same headers, once a .cpp includes them, are reported at the prototypes", async () => {
+    const { lines, findings } = await checkDir("linkage/cxx-needs-c-linkage/bad");
+    expect(lines.sort()).toEqual(["strike_front.h:4 cxx-needs-c-linkage", "strike_ring.h:14 cxx-needs-c-linkage"]);
+    const f = findings.find((x) => x.range.file.endsWith("strike_ring.h"))!;
+    expect(f.related[0]!.range.file).toMatch(/strike_view\.cpp$/);
+  });
+});

@@ -119,3 +119,37 @@ pub unsafe extern "C" fn seis_install(h: *const SeisHooks, t: *const SeisTable) 
     expect(findings.map((f) => `${f.rule} ${f.message}`)).toEqual([]);
   });
 });
+
+// Constness by who may write (C11 6.7.3p6: writing through a pointer to a const-qualified object is
+// undefined; C11 7.22.3.3: free takes back what it was given, whatever const the caller held it by;
+// std::ptr::NonNull has no read-only form). The severities: Rust writing where C says const is an
+// error; C possibly writing what Rust lent read-only (an imported function, a sample buffer C
+// expects filled) a warning; a record or an inner level Rust only reads, or a writable pointer Rust
+// passes to a C function that promises const, is advice.
+describe("pointer-constness: who writes", () => {
+  test("good: a record and an inner level Rust only reads, a release function, NonNull, a Rust-writable pointer into a C const parameter: info at most", async () => {
+    const { findings } = await checkDir("signatures/pointer-constness/who-writes/good");
+    expect(findings.filter((f) => f.severity !== "info")).toEqual([]);
+    expect(findings.map((f) => `${f.rule} ${f.range.line + 1}`)).toEqual(["pointer-constness 17", "pointer-constness 19", "pointer-constness 24"]);
+    expect(findings[0]!.message).toContain("Rust only reads through it");
+  });
+  test("bad: a buffer C expects filled taken read-only, Rust writing a const config, C writing what Rust lent read-only", async () => {
+    const { findings } = await checkDir("signatures/pointer-constness/who-writes/bad");
+    expect(findings.filter((f) => f.rule === "pointer-constness").map((f) => `${f.range.line + 1} ${f.severity}`)).toEqual(["14 warning", "15 error", "17 warning"]);
+  });
+});
+
+// A header comment that says the callback is called makes it required: a NULL there breaks the
+// header's contract, so a plain Rust `extern "C" fn` is right (Rust Reference, "Function pointer
+// types": never null). A header that allows NULL still needs Option<fn> (std::option,
+// "Representation"). A pointer to a function typedef is a callback like any other.
+describe("callback-mismatch: required callbacks", () => {
+  test("good: callbacks the comments say are called; a pointer to a function typedef", async () => {
+    const { lines } = await checkDir("signatures/callback-mismatch/required-callback/good");
+    expect(lines).toEqual([]);
+  });
+  test("bad: a callback the header allows NULL for; a typedef'd callback with a double where C has float", async () => {
+    const { findings } = await checkDir("signatures/callback-mismatch/required-callback/bad");
+    expect(findings.map((f) => `${f.rule} ${f.range.line + 1} ${f.severity}`)).toEqual(["callback-mismatch 10 warning", "callback-mismatch 12 error"]);
+  });
+});

@@ -306,6 +306,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
       }
       case "class_specifier":
       case "template_declaration":
+        if (lang === "cpp") facts.cxxSyntax = true;
         return false;
       case "compound_statement":
         return false;

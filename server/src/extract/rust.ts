@@ -105,8 +105,8 @@ export function rustType(n: Node | null, ctx: RustCtx): AbiType {
         const inner = rustType(a0, ctx);
         if (inner.k === "ptr" && inner.via !== "raw") return { ...inner, nullable: true };
         if (inner.k === "fn") return { ...inner, nullable: true };
-        const why = "Option<T> has a C layout only around a reference, Box, NonNull or function pointer";
-        return inner.k === "named" ? { k: "unsafe", text: n.text, why, optionOf: inner } : { k: "unsafe", text: n.text, why };
+        const why = "Option<T> has a C layout only around a reference, Box, NonNull or function pointer (or a #[repr(transparent)] struct around one)";
+        return inner.k === "named" || (inner.k === "unsafe" && inner.generic) ? { k: "unsafe", text: n.text, why, optionOf: inner } : { k: "unsafe", text: n.text, why };
       }
       if (last === "NonNull" && a0) return { k: "ptr", to: rustType(a0, ctx), mut: true, via: "nonnull", nullable: false };
       if (last === "Box" && a0) {
@@ -116,7 +116,9 @@ export function rustType(n: Node | null, ctx: RustCtx): AbiType {
       if ((last === "ManuallyDrop" || last === "MaybeUninit" || last === "UnsafeCell" || last === "Wrapping") && a0) return rustType(a0, ctx);
       if (last === "PhantomData") return { k: "array", of: { k: "scalar", s: "u8" }, len: 0, lenText: "0" };
       if (NOT_FFI[last]) return { k: "unsafe", text: n.text, why: NOT_FFI[last]! };
-      return { k: "unsafe", text: n.text, why: "a generic type instance; its layout depends on the type arguments and is not known to C" };
+      // `Image<'a>`: lifetimes do not change a layout (Rust Reference, "Type layout")
+      if (args.length === 0) return { k: "named", name: last };
+      return { k: "unsafe", text: n.text, why: "a generic type instance; its layout depends on the type arguments and is not known to C", generic: { name: last, args: args.map((a) => rustType(a, ctx)) } };
     }
     case "scoped_type_identifier":
     case "type_identifier": {
@@ -486,6 +488,9 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           readFn(n);
           break;
         case "foreign_mod_item": {
+          // `#[wasm_bindgen] extern "C" { … }` declares JavaScript imports of a wasm module: the
+          // bindings generator writes their glue, no C declaration stands behind them.
+          if (attrsBefore(n).texts.some((t) => /^wasm_bindgen\b/.test(t))) break;
           const abi = abiOf(n) ?? "C";
           const body = n.childForFieldName("body");
           if (body) readForeign(body, abi, attrsBefore(n), n.startPosition.row);
@@ -498,6 +503,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           const next = kids[i + 1];
           const block = next?.type === "expression_statement" ? next.namedChild(0) : next?.type === "block" ? next : null;
           if (ext && block?.type === "block") {
+            if (attrsBefore(n).texts.some((t) => /^wasm_bindgen\b/.test(t))) { i++; break; } // JavaScript imports (see above)
             const s = ext.namedChildren.find((c) => c.type === "string_literal");
             readForeign(block, s ? s.text.replace(/"/g, "") : "C", attrsBefore(n), n.startPosition.row);
             i++;

@@ -273,8 +273,8 @@ export class Model {
   resolve(t: AbiType, side: Side, depth = 0): AbiType {
     if (depth > 32) return { k: "unknown", text: "alias cycle" };
     if (t.k === "unsafe" && t.optionOf) {
-      const inner = this.resolve(t.optionOf, side, depth + 1);
-      if (inner.k === "fn" || (inner.k === "ptr" && inner.via !== "raw")) return { ...inner, nullable: true };
+      const inner = this.nonNullCore(t.optionOf, depth + 1);
+      if (inner && (inner.k === "fn" || inner.k === "ptr")) return { ...inner, nullable: true };
       return t;
     }
     if (t.k === "named") {
@@ -292,13 +292,56 @@ export class Model {
     return t;
   }
 
-  /** The struct/union/enum/opaque declaration a type names, after resolving aliases. */
-  aggregate(t: AbiType, side: Side): TypeDecl | undefined {
+  /**
+   * The never-null pointer an `Option<T>` may wrap with C's layout: a reference, Box, NonNull or
+   * function pointer, or a #[repr(transparent)] struct around one (std::option, "Representation":
+   * `Option<T>` has the same size, alignment and ABI as `T` for those, None being the null
+   * pointer). Undefined for any other T.
+   */
+  private nonNullCore(t: AbiType, depth: number): (AbiType & { k: "fn" | "ptr" }) | undefined {
+    if (depth > 32) return undefined;
+    const r = this.resolve(t, "rust", depth + 1);
+    if (r.k === "fn" || (r.k === "ptr" && r.via !== "raw")) return r;
+    const name = r.k === "named" ? r.name : r.k === "unsafe" && r.generic ? r.generic.name : undefined;
+    if (!name) return undefined;
+    const d = this.typeDecls(name, "rust").find((x) => x.kind === "struct");
+    if (!d || !d.repr.transparent) return undefined;
+    const sized = d.fields.filter((f) => !(f.type.k === "array" && f.type.len === 0));
+    return sized.length === 1 ? this.nonNullCore(sized[0]!.type, depth + 1) : undefined;
+  }
+
+  /**
+   * The struct/union/enum/opaque declaration a type names, after resolving aliases. With `from`
+   * (the file that names the type), a name declared more than once on that side is taken from the
+   * nearest declaration: the same file, then the same folder, then the longest shared folder path
+   * (Rust modules follow the folder tree; two `Stats` in two modules are two types).
+   */
+  aggregate(t: AbiType, side: Side, from?: string): TypeDecl | undefined {
     const r = this.resolve(t, side);
     if (r.k !== "named") return undefined;
     const decls = this.typeDecls(r.name, side).filter((d) => d.kind !== "alias");
+    if (from && decls.length > 1) {
+      const bodies = decls.filter((d) => d.kind !== "opaque");
+      const pool = bodies.length ? bodies : decls;
+      let best = pool[0]!, bestScore = -1;
+      for (const d of pool) {
+        const sc = nearness(from, d.file);
+        if (sc > bestScore) { best = d; bestScore = sc; }
+      }
+      return best;
+    }
     return decls.find((d) => d.kind !== "opaque") ?? decls[0];
   }
+}
+
+/** How near a declaring file is to the file that names the type: the same file scores highest,
+ * then the number of leading folders the two paths share. */
+export function nearness(from: string, file: string): number {
+  if (from === file) return 10_000;
+  const a = from.split("/"), b = file.split("/");
+  let i = 0;
+  while (i < a.length - 1 && i < b.length - 1 && a[i] === b[i]) i++;
+  return i;
 }
 
 /** Normalises a type name for cross-language matching: `SonarFir`, `sonar_fir`, `struct sonar_fir`. */

@@ -87,8 +87,10 @@ export function compareOn(model: Model, r0: AbiType, c0: AbiType, triple: Triple
   const r = transparentAsField(model, model.resolve(r0, "rust"), c, triple);
   if (r.k === "unknown" || c.k === "unknown" || r.k === "unsafe" || c.k === "unsafe") return null;
 
-  const rf = fnOf(r);
-  const cf = fnOf(c);
+  // a pointer to a typedef of a function type (`typedef int cb_fn(float); … cb_fn *cb`) is a
+  // function pointer too
+  const rf = fnOf(r) ?? (r.k === "ptr" ? fnOf(model.resolve(r.to, "rust")) : undefined);
+  const cf = fnOf(c) ?? (c.k === "ptr" ? fnOf(model.resolve(c.to, "c")) : undefined);
   if (rf || cf) {
     if (!rf || !cf) return { kind: "depth", detail: `${describeRust(r)} in Rust but ${describeC(c)} in C` };
     if (rf.params.length !== cf.params.length) return { kind: "callback", detail: `the callback takes ${rf.params.length} parameter(s) in Rust but ${cf.params.length} in C` };
@@ -125,7 +127,9 @@ export function compareOn(model: Model, r0: AbiType, c0: AbiType, triple: Triple
     // so the writable pointer gives C nothing Rust did not grant. `Arc::into_raw` returns
     // `*const T`; a `gm_calib *` for it is common practice.
     const opaqueC = ct.k === "named" && model.aggregate(ct, "c")?.kind === "opaque";
-    if (r.mut !== c.mut && !(!r.mut && opaqueC)) {
+    // NonNull<T> has no read-only form (std::ptr::NonNull: "*mut T but non-zero and covariant"):
+    // it says nothing about writing, so it agrees with a const and a writable C pointee alike.
+    if (r.mut !== c.mut && !(!r.mut && opaqueC) && r.via !== "nonnull") {
       return r.mut
         ? { kind: "const", rustWrites: true, detail: `Rust takes \`${describeRust(r)}\` (may write) but C declares the pointee const (\`${describeC(c)}\`)` }
         : { kind: "const", rustWrites: false, detail: `Rust takes \`${describeRust(r)}\` (read-only) but C passes a writable \`${describeC(c)}\`` };
@@ -244,10 +248,25 @@ function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple)
   if ((r.k === "named") !== (c.k === "named") && !(rd?.kind === "enum" || cd?.kind === "enum")) {
     return { kind: "kind", detail: `\`${describeRust(r)}\` in Rust but \`${describeC(c)}\` in C` };
   }
-  if (r.k === "named" && c.k === "named" && !mirrorNames(r.name, c.name) && rd && cd && rd.kind !== "enum" && cd.kind !== "enum") {
+  // A #[repr(C)] Rust aggregate and a C aggregate with a body that meet at the same parameter, one
+  // name's words all in the other's (`MsacAsmContext` / `MsacContext`), are a mirror pair
+  // (rules/layout.ts compares them field by field); names with no word in common stay a warning.
+  if (r.k === "named" && c.k === "named" && !(mirrored && relatedNames(r.name, c.name)) && !mirrorNames(r.name, c.name) && rd && cd && rd.kind !== "enum" && cd.kind !== "enum") {
     return { kind: "name", detail: `\`${r.name}\` in Rust but \`${describeC(c)}\` in C (same size, different types)` };
   }
   return null;
+}
+
+/** The words of a type name: CamelCase and snake_case split, lower case, no `struct`/`_t`. */
+function nameWords(n: string): string[] {
+  return n.replace(/^(struct|union|enum)\s+/, "").replace(/_t$/, "").replace(/([a-z0-9])([A-Z])/g, "$1_$2").toLowerCase().split(/_+/).filter(Boolean);
+}
+
+/** One name's words are all among the other's. */
+function relatedNames(a: string, b: string): boolean {
+  const wa = nameWords(a), wb = nameWords(b);
+  const [short, long] = wa.length <= wb.length ? [wa, new Set(wb)] : [wb, new Set(wa)];
+  return short.length > 0 && short.every((w) => long.has(w));
 }
 
 /** Compares on every target and groups targets that share the same difference. */

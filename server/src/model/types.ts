@@ -34,7 +34,12 @@ export type AbiType =
    * `optionOf`: an `Option<Name>` whose inner type is an alias the extractor cannot see yet; the
    * model resolves it (an alias of a fn pointer or reference makes it a nullable pointer).
    */
-  | { k: "unsafe"; text: string; why: string; optionOf?: AbiType }
+  /**
+   * `generic`: an instance of a generic type with type arguments (`WithOffset<*const u8>`); the
+   * type's declaration decides whether it has a C layout (#[repr(C)]/transparent, and arguments
+   * that have one).
+   */
+  | { k: "unsafe"; text: string; why: string; optionOf?: AbiType; generic?: { name: string; args: AbiType[] } }
   | { k: "unknown"; text: string };
 
 export interface Param {
@@ -196,6 +201,9 @@ export interface FileFacts {
   hasErrors: boolean;
   /** C/C++ header: content is wrapped for C++ (extern "C" under #ifdef __cplusplus or plain). */
   cppGuarded?: boolean;
+  /** C/C++: the tree holds constructs only C++ has (a class, a template), so a C compiler cannot
+   * read the file; a `.h` read with the C++ grammar because it gave fewer errors may still be C. */
+  cxxSyntax?: boolean;
   /** Free-form per-family facts (e.g. ports, suppressions). */
   extra: Record<string, unknown>;
   /** Rust: item-level macro invocations (`gain_kernel!(hyd_gain_f32, f32);`), which may define

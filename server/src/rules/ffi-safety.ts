@@ -11,42 +11,82 @@ export const NOT_C_TYPE: RuleMeta = {
   why: "C sees a different number of words or an unspecified layout, so every argument after it is shifted or garbage.",
 };
 
-function problem(model: Model, t: AbiType, depth = 0): string | undefined {
+interface Problem {
+  why: string;
+  /** The type's declaration is not in the workspace (another crate): its layout is unknown, not wrong. */
+  unknown?: boolean;
+}
+
+/**
+ * Why a type has no C representation, or undefined. `from` is the file of the function, so a name
+ * declared in more than one module is read from the nearest declaration.
+ */
+function problem(model: Model, t: AbiType, from: string, depth = 0): Problem | undefined {
   if (depth > 8) return undefined;
   if (t.k === "unsafe" && t.optionOf) t = model.resolve(t, "rust");
-  if (t.k === "unsafe") return t.why;
+  if (t.k === "unsafe" && t.generic) return genericProblem(model, t, t.generic, from, depth);
+  if (t.k === "unsafe") return { why: t.why };
   if (t.k === "ptr") {
     const inner = model.resolve(t.to, "rust");
-    if (inner.k === "unsafe") return t.via === "raw" ? undefined : inner.why;
+    // a reference or Box to a sized generic instance is one pointer like any other
+    if (inner.k === "unsafe" && !inner.generic) return t.via === "raw" ? undefined : { why: inner.why };
     return undefined; // pointers to anything are pointer-sized; what they point to is the layout rules' job
   }
   if (t.k === "fn") {
-    for (const p of t.params) { const q = problem(model, p, depth + 1); if (q) return q; }
-    return problem(model, t.ret, depth + 1);
+    for (const p of t.params) { const q = problem(model, p, from, depth + 1); if (q) return q; }
+    return problem(model, t.ret, from, depth + 1);
   }
   if (t.k === "named") {
     const r = model.resolve(t, "rust");
-    if (r.k !== "named") return problem(model, r, depth + 1);
-    const d = model.aggregate(r, "rust");
+    if (r.k !== "named") return problem(model, r, from, depth + 1);
+    const d = model.aggregate(r, "rust", from);
     if (!d) return undefined;
-    if (d.generic) return `\`${d.name}\` is generic`;
+    if (d.generic) return { why: `\`${d.name}\` is generic` };
     if ((d.kind === "struct" || d.kind === "union") && !d.repr.c && !d.repr.transparent && !d.opaqueMarker) {
-      return `\`${d.name}\` is passed by value but is not #[repr(C)] or #[repr(transparent)], so Rust may reorder its fields`;
+      return { why: `\`${d.name}\` is passed by value but is not #[repr(C)] or #[repr(transparent)], so Rust may reorder its fields` };
     }
-    if (d.kind === "enum" && !d.repr.c && !d.repr.int && !d.opaqueMarker) return `enum \`${d.name}\` has no #[repr(C)] or #[repr(<int>)]`;
+    if (d.kind === "enum" && !d.repr.c && !d.repr.int && !d.opaqueMarker) return { why: `enum \`${d.name}\` has no #[repr(C)] or #[repr(<int>)]` };
   }
-  if (t.k === "array") return "arrays are not passed by value in C (a C array parameter is a pointer); pass a pointer or wrap it in a #[repr(C)] struct";
+  if (t.k === "array") return { why: "arrays are not passed by value in C (a C array parameter is a pointer); pass a pointer or wrap it in a #[repr(C)] struct" };
   return undefined;
+}
+
+/**
+ * An instance of a generic type (`WithOffset<*const u8>`): a #[repr(C)] or #[repr(transparent)]
+ * generic struct is laid out by the C rules for each instance (Rust Reference, "Type layout": the
+ * representation applies to every instantiation), so the instance has a C layout when its type
+ * arguments do. A generic type declared in no file of the workspace (another crate) is unknown.
+ */
+function genericProblem(model: Model, t: AbiType & { k: "unsafe" }, g: { name: string; args: AbiType[] }, from: string, depth: number): Problem | undefined {
+  const decls = model.typeDecls(g.name, "rust");
+  if (!decls.length) return { why: t.why, unknown: true };
+  const d = model.aggregate({ k: "named", name: g.name }, "rust", from);
+  if (!d) return { why: t.why };
+  if ((d.kind === "struct" || d.kind === "union") && (d.repr.c || d.repr.transparent)) {
+    for (const a of g.args) {
+      const q = problem(model, a, from, depth + 1);
+      if (q) return { ...q, why: `type argument of \`${g.name}\`: ${q.why}` };
+    }
+    return undefined;
+  }
+  if (d.kind === "enum" && (d.repr.c || d.repr.int)) return undefined;
+  return { why: `\`${g.name}\` is generic and has no #[repr(C)] or #[repr(transparent)]` };
+}
+
+function report(out: Finding[], q: Problem, range: FnDecl["range"], message: string, data: Record<string, unknown>) {
+  const f = finding(NOT_C_TYPE, range, q.unknown ? `${message} (declared outside this workspace: ferrule cannot see whether it has #[repr(C)])` : message, [], { data });
+  if (q.unknown) f.severity = "info";
+  out.push(f);
 }
 
 function check(model: Model, fn: FnDecl, out: Finding[]) {
   if (fn.abi === "Rust") return;
   fn.params.forEach((p, i) => {
-    const why = problem(model, p.type);
-    if (why) out.push(finding(NOT_C_TYPE, p.typeRange, `parameter ${i + 1} \`${p.name}: ${p.text}\` of extern "${fn.abi}" fn \`${fn.name}\`: ${why}`, [], { data: { fn: fn.id, param: i } }));
+    const q = problem(model, p.type, fn.file);
+    if (q) report(out, q, p.typeRange, `parameter ${i + 1} \`${p.name}: ${p.text}\` of extern "${fn.abi}" fn \`${fn.name}\`: ${q.why}`, { fn: fn.id, param: i });
   });
-  const why = problem(model, fn.ret);
-  if (why && fn.retRange) out.push(finding(NOT_C_TYPE, fn.retRange, `return type \`${fn.retText}\` of extern "${fn.abi}" fn \`${fn.name}\`: ${why}`, [], { data: { fn: fn.id, ret: true } }));
+  const q = problem(model, fn.ret, fn.file);
+  if (q && fn.retRange) report(out, q, fn.retRange, `return type \`${fn.retText}\` of extern "${fn.abi}" fn \`${fn.name}\`: ${q.why}`, { fn: fn.id, ret: true });
 }
 
 export const ffiSafetyFamily: RuleFamily = {

@@ -7,7 +7,11 @@
 //  2. a function signature: parameter i (or the return) of a Rust extern fn and of the C
 //     declaration of the same symbol name aggregates, by value or through the same number of
 //     pointer levels;
-//  3. the same name after normalisation (`SonarFrameHdr` ~ `sonar_frame_hdr_t`).
+//  3. the same name after normalisation (`SonarFrameHdr` ~ `sonar_frame_hdr_t`), for a Rust type
+//     no signature pairs with another C type. Such a pair is weak (its findings are `info`) unless
+//     a seam function's signature names the Rust type: sharing a name is no evidence the two ever
+//     meet (a Rust port beside the C it replaced, a Rust API type beside a C test helper).
+// A name declared in several files is read from the declaration nearest the file that names it.
 // Layout facts come from model/layout.ts (checked against clang/gcc/rustc by
 // tests/layout.oracle.test.ts); the Rust Reference ("Type layout") says a repr(C) type is laid out
 // like the C type, and ("Behavior considered undefined") that an invalid enum discriminant is
@@ -65,6 +69,13 @@ export interface Pair {
   via: string;
   /** Only ever passed by value (the ffi-safety family reports a missing repr then). */
   byValueOnly: boolean;
+  /**
+   * Paired by name alone: no seam function passes either type (as a parameter or return, through
+   * pointers, or as a field of a type one passes) and no annotation maps them. Two types that share
+   * a name but never meet at the boundary (a Rust port beside the C it replaced, a Rust API type
+   * beside a C test helper) are not mirrors, so their differences are advice: `info`.
+   */
+  weak?: boolean;
 }
 
 const MIRROR_RE = /ferrule-mirror:\s*(?:struct\s+|union\s+|enum\s+)?([A-Za-z_]\w*)/;
@@ -79,7 +90,7 @@ function cAggregateByName(model: Model, name: string): TypeDecl | undefined {
 }
 
 /** Peels the same number of pointer/array levels off both sides; returns the inner named types. */
-function innerPair(model: Model, r: AbiType, c: AbiType): { r: TypeDecl; c: TypeDecl; byValue: boolean } | undefined {
+function innerPair(model: Model, r: AbiType, c: AbiType, rFrom?: string, cFrom?: string): { r: TypeDecl; c: TypeDecl; byValue: boolean } | undefined {
   let a = model.resolve(r, "rust");
   let b = model.resolve(c, "c");
   let byValue = true;
@@ -98,8 +109,8 @@ function innerPair(model: Model, r: AbiType, c: AbiType): { r: TypeDecl; c: Type
     break;
   }
   if (a.k !== "named" || b.k !== "named") return undefined;
-  const rd = model.aggregate(a, "rust");
-  const cd = model.aggregate(b, "c");
+  const rd = model.aggregate(a, "rust", rFrom);
+  const cd = model.aggregate(b, "c", cFrom);
   if (!rd || !cd || cd.kind === "opaque" || rd.opaqueMarker || rd.generic) return undefined;
   return { r: rd, c: cd, byValue };
 }
@@ -159,35 +170,103 @@ function computePairs(model: Model): Pair[] {
       for (const c of cands) {
         const n = Math.min(r.params.length, c.params.length);
         for (let i = 0; i < n; i++) {
-          const p = innerPair(model, r.params[i]!.type, c.params[i]!.type);
+          const p = innerPair(model, r.params[i]!.type, c.params[i]!.type, r.file, c.file);
           if (p) add(p.r, p.c, `both are parameter ${i + 1} of \`${g.symbol}\``, p.byValue);
         }
-        const p = innerPair(model, r.ret, c.ret);
+        const p = innerPair(model, r.ret, c.ret, r.file, c.file);
         if (p) add(p.r, p.c, `both are the return type of \`${g.symbol}\``, p.byValue);
       }
     }
   }
-  // 3. same (normalised) name, when exactly one C aggregate has it
+  // nested aggregates of a pair pair up too (same field index, same pointer depth)
+  const nest = (queue: Pair[]) => {
+    for (let k = 0; k < queue.length && k < 10_000; k++) {
+      const p = queue[k]!;
+      if (p.rust.kind === "enum" || p.c.kind === "enum") continue;
+      const n = Math.min(p.rust.fields.length, p.c.fields.length);
+      for (let i = 0; i < n; i++) {
+        const q = innerPair(model, p.rust.fields[i]!.type, p.c.fields[i]!.type, p.rust.file, p.c.file);
+        if (!q) continue;
+        const key = `${q.r.id}|${q.c.id}`;
+        if (pairs.has(key)) continue;
+        add(q.r, q.c, `they are field ${i + 1} of \`${p.rust.name}\` / \`${p.c.name}\``, q.byValue && p.byValueOnly);
+        const np = pairs.get(key)!;
+        if (p.weak && !seamTypes(model).has(q.r.id)) np.weak = true;
+        queue.push(np);
+      }
+    }
+  };
+  nest([...pairs.values()]);
+  // 3. same (normalised) name, when exactly one C aggregate has it; weak unless a seam function
+  // passes the Rust type (then C code may well hand it the C type of that name)
+  const named: Pair[] = [];
+  const pairedRust = new Set([...pairs.values()].map((p) => p.rust.id));
   for (const d of rustAggs) {
     const cs = cByNorm.get(normName(d.name)) ?? [];
-    if (cs.length === 1 && (cs[0]!.kind === "enum") === (d.kind === "enum")) add(d, cs[0]!, "they have the same name", false);
+    if (cs.length !== 1 || (cs[0]!.kind === "enum") !== (d.kind === "enum")) continue;
+    const key = `${d.id}|${cs[0]!.id}`;
+    if (pairs.has(key)) {
+      add(d, cs[0]!, "they have the same name", false); // the same pair: also named alike (it crosses as the C type's twin)
+      continue;
+    }
+    if (pairedRust.has(d.id)) continue; // a signature pairs it with another C type: that one is its mirror
+    add(d, cs[0]!, "they have the same name", false);
+    const np = pairs.get(key)!;
+    if (!seamTypes(model).has(d.id)) np.weak = true;
+    named.push(np);
   }
-  // nested aggregates of a pair pair up too (same field index, same pointer depth)
-  const queue = [...pairs.values()];
-  for (let k = 0; k < queue.length && k < 10_000; k++) {
-    const p = queue[k]!;
-    if (p.rust.kind === "enum" || p.c.kind === "enum") continue;
-    const n = Math.min(p.rust.fields.length, p.c.fields.length);
-    for (let i = 0; i < n; i++) {
-      const q = innerPair(model, p.rust.fields[i]!.type, p.c.fields[i]!.type);
-      if (!q) continue;
-      const key = `${q.r.id}|${q.c.id}`;
-      if (pairs.has(key)) continue;
-      add(q.r, q.c, `they are field ${i + 1} of \`${p.rust.name}\` / \`${p.c.name}\``, q.byValue && p.byValueOnly);
-      queue.push(pairs.get(key)!);
+  nest(named);
+  return [...pairs.values()];
+}
+
+const seamCache = new WeakMap<Model, Set<string>>();
+
+/**
+ * The Rust aggregates a seam function's signature names: a parameter or the return of an exported
+ * or imported function, through pointers, arrays, Option and callback signatures. One step only:
+ * the items this reads share the type's name (analysis/keys.ts), so a scoped re-check sees them.
+ */
+function seamTypes(model: Model): Set<string> {
+  let hit = seamCache.get(model);
+  if (hit) return hit;
+  hit = new Set();
+  const out = hit;
+  const visit = (t: AbiType, from: string, depth: number): void => {
+    if (depth > 16) return;
+    const r = model.resolve(t, "rust");
+    if (r.k === "unsafe") {
+      if (r.optionOf) visit(r.optionOf, from, depth + 1);
+      if (r.generic) for (const a of r.generic.args) visit(a, from, depth + 1);
+    } else if (r.k === "ptr") visit(r.to, from, depth + 1);
+    else if (r.k === "array") visit(r.of, from, depth + 1);
+    else if (r.k === "fn") {
+      for (const p of r.params) visit(p, from, depth + 1);
+      visit(r.ret, from, depth + 1);
+    } else if (r.k === "named") {
+      const d = model.aggregate(r, "rust", from);
+      if (d) out.add(d.id);
+    }
+  };
+  for (const g of model.symbols.values()) {
+    for (const f of g.rust) {
+      if (f.role !== "export" && f.role !== "import") continue;
+      for (const p of f.params) visit(p.type, f.file, 0);
+      visit(f.ret, f.file, 0);
     }
   }
-  return [...pairs.values()];
+  seamCache.set(model, hit);
+  return hit;
+}
+
+/** Findings made for a weak (name-only) pair become `info`, saying why. */
+function weaken(p: Pair, out: Finding[], from: number): void {
+  if (!p.weak) return;
+  for (let i = from; i < out.length; i++) {
+    const f = out[i]!;
+    if (f.severity === "info") continue;
+    f.severity = "info";
+    f.message += ` — paired by name only: no seam function passes \`${p.rust.name}\` or \`${p.c.name}\`, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`;
+  }
 }
 
 function bytes(n: number): string {
@@ -251,7 +330,95 @@ function registerWord(model: Model, r: AbiType, c: AbiType, t: Triple, a: FieldL
   return a.size === b.size && a.align === b.align;
 }
 
+interface Leaf { o: number; size: number; cls: string }
+
+/**
+ * The scalar pieces of a type at their byte offsets (a struct's fields in order, an array's
+ * elements), a union as one opaque piece; false when some part is unknown. Two types with the same
+ * pieces hold the same bytes the same way, however the fields are grouped: a Rust struct holding
+ * `{ pos, end }` for a C struct's `buf_pos, buf_end` (C11 6.7.2.1p15: members at increasing
+ * addresses; Rust Reference, "The C representation": the same algorithm).
+ */
+function leaves(model: Model, t: AbiType, side: "rust" | "c", triple: Triple, base: number, out: Leaf[], from: string, depth = 0): boolean {
+  if (depth > 16 || out.length > 4096) return false;
+  const r = model.resolve(t, side);
+  if (r.k === "scalar") {
+    const i = scalarInfo(r.s, triple);
+    out.push({ o: base, size: i.size, cls: `${i.cls}${i.cls === "int" && i.signed ? "s" : ""}` });
+    return true;
+  }
+  if (r.k === "ptr" || r.k === "fn") {
+    const l = layoutOf(r.k === "fn" ? { k: "ptr", to: r, mut: true } : r, { model, side, triple });
+    if (l.unknown) return false;
+    out.push({ o: base, size: l.size, cls: "ptr" });
+    return true;
+  }
+  if (r.k === "array") {
+    if (r.len === null) return false;
+    const el = layoutOf(r.of, { model, side, triple });
+    if (el.unknown) return false;
+    for (let i = 0; i < r.len; i++) if (!leaves(model, r.of, side, triple, base + i * el.size, out, from, depth + 1)) return false;
+    return true;
+  }
+  if (r.k !== "named") return false;
+  const d = model.aggregate(r, side, from);
+  if (!d) return false;
+  const l = declLayout(d, { model, side, triple });
+  if (l.unknown || l.notPortable) return false;
+  if (d.kind === "enum") {
+    out.push({ o: base, size: l.size, cls: "enum" });
+    return true;
+  }
+  if (d.kind === "union") {
+    out.push({ o: base, size: l.size, cls: "union" });
+    return true;
+  }
+  if (d.kind !== "struct" || !l.fields || d.fields.some((f) => f.bits !== undefined)) return false;
+  for (let i = 0; i < d.fields.length; i++) {
+    const fl = l.fields[i];
+    if (!fl || !leaves(model, d.fields[i]!.type, side, triple, base + fl.offset, out, d.file, depth + 1)) return false;
+  }
+  return true;
+}
+
+/** Same pieces on both sides; an opaque union piece on one side covers whatever the other side
+ * puts in its bytes (a mirror of a union by one of its members). Enums compare as integers. */
+function sameLeaves(a: Leaf[], b: Leaf[]): boolean {
+  // an enum holds an integer of its size (checked value by value by the enum rules)
+  const same = (x: Leaf, y: Leaf) => x.cls === y.cls || (x.cls === "enum" && y.cls.startsWith("int")) || (y.cls === "enum" && x.cls.startsWith("int"));
+  let i = 0, j = 0;
+  while (i < a.length && j < b.length) {
+    const x = a[i]!, y = b[j]!;
+    if (x.cls === "union" || y.cls === "union") {
+      const [u, other, k0, isA] = x.cls === "union" ? [x, b, j, true] : [y, a, i, false];
+      if (x.o !== y.o) return false;
+      let k = k0;
+      while (k < other.length && other[k]!.o + other[k]!.size <= u.o + u.size && other[k]!.o >= u.o) k++;
+      if (k < other.length && other[k]!.o < u.o + u.size) return false;
+      if (isA) { i++; j = k; } else { j++; i = k; }
+      continue;
+    }
+    if (x.o !== y.o || x.size !== y.size || !same(x, y)) return false;
+    i++; j++;
+  }
+  return i === a.length && j === b.length;
+}
+
+function flatEqual(model: Model, p: Pair, t: Triple): boolean {
+  const a: Leaf[] = [], b: Leaf[] = [];
+  return leaves(model, { k: "named", name: p.rust.name }, "rust", t, 0, a, p.rust.file)
+    && leaves(model, { k: "named", name: p.c.name }, "c", t, 0, b, p.c.file)
+    && sameLeaves(a, b);
+}
+
 function diffOn(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): FieldDiff | undefined {
+  const d = diffFields(model, p, t, lr, lc);
+  // grouped differently but the same bytes: not a difference
+  if (d && d.severity !== "warning" && lr.size === lc.size && lr.align === lc.align && flatEqual(model, p, t)) return undefined;
+  return d;
+}
+
+function diffFields(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): FieldDiff | undefined {
   const rf = p.rust.fields;
   const cf = p.c.fields;
   const bits = cf.some((f) => f.bits !== undefined);
@@ -324,6 +491,14 @@ function checkPair(model: Model, p: Pair, out: Finding[], reprReported: Set<stri
     checkEnumPair(model, p, out);
     return;
   }
+  // A Rust struct standing for a C union (common practice: Rust code emulating the union by its
+  // largest member, or bytes with accessors) holds the same bytes when it has the union's size and
+  // alignment on every target and its pieces fit inside the union.
+  if (rd.kind === "struct" && cd.kind === "union" && model.targets.every((t) => {
+    const a = declLayout(rd, { model, side: "rust", triple: t });
+    const b = declLayout(cd, { model, side: "c", triple: t });
+    return !a.unknown && !b.unknown && a.size === b.size && a.align === b.align && flatEqual(model, p, t);
+  })) return;
   if (rd.kind !== cd.kind) {
     out.push(finding(MIRROR_MISMATCH, rd.nameRange, `\`${rd.name}\` is a Rust ${rd.kind} but C \`${cName(cd)}\` is a ${cd.kind} (${p.via})`, related, { data: { rust: rd.id, c: cd.id } }));
     return;
@@ -368,16 +543,29 @@ function checkEnumPair(model: Model, p: Pair, out: Finding[]): void {
     out.push(finding(ENUM_MISMATCH, rd.nameRange, `\`${rd.name}\` is a Rust ${rd.kind} but C \`${cd.name}\` is a ${cd.kind} (${p.via})`, related));
     return;
   }
-  const re = rd.enumerators;
-  const ce = cd.enumerators;
-  const n = Math.min(re.length, ce.length);
+  const re = withoutCount(rd.enumerators);
+  const ce = withoutCount(cd.enumerators);
   let reported = false;
-  for (let i = 0; i < n; i++) {
-    if (re[i]!.value === null || ce[i]!.value === null) break;
-    if (re[i]!.value !== ce[i]!.value) {
-      out.push(finding(ENUM_MISMATCH, re[i]!.range, `\`${rd.name}::${re[i]!.name}\` = ${re[i]!.value} in Rust but the C value at the same position, \`${ce[i]!.name}\`, is ${ce[i]!.value}`, [{ range: ce[i]!.range, message: `C enumerator \`${ce[i]!.name}\` (matched because ${p.via})` }], { data: { rust: rd.id, c: cd.id, index: i } }));
+  const byName = membersByName(re, ce);
+  if (byName) {
+    // every Rust variant has a C enumerator of the same name (once each side's common prefix is
+    // stripped): compare values name by name, so swapped or shifted values show where they are
+    for (let i = 0; i < re.length; i++) {
+      const c = byName[i]!;
+      if (re[i]!.value === null || c.value === null || re[i]!.value === c.value) continue;
+      out.push(finding(ENUM_MISMATCH, re[i]!.range, `\`${rd.name}::${re[i]!.name}\` = ${re[i]!.value} in Rust but the C value of the same member, \`${c.name}\`, is ${c.value}`, [{ range: c.range, message: `C enumerator \`${c.name}\` (same member name; matched because ${p.via})` }], { data: { rust: rd.id, c: cd.id, index: i } }));
       reported = true;
       break;
+    }
+  } else {
+    const n = Math.min(re.length, ce.length);
+    for (let i = 0; i < n; i++) {
+      if (re[i]!.value === null || ce[i]!.value === null) break;
+      if (re[i]!.value !== ce[i]!.value) {
+        out.push(finding(ENUM_MISMATCH, re[i]!.range, `\`${rd.name}::${re[i]!.name}\` = ${re[i]!.value} in Rust but the C value at the same position, \`${ce[i]!.name}\`, is ${ce[i]!.value}`, [{ range: ce[i]!.range, message: `C enumerator \`${ce[i]!.name}\` (matched because ${p.via})` }], { data: { rust: rd.id, c: cd.id, index: i } }));
+        reported = true;
+        break;
+      }
     }
   }
   if (!reported && re.length !== ce.length) {
@@ -402,6 +590,53 @@ function checkEnumPair(model: Model, p: Pair, out: Finding[]): void {
       data: { rust: rd.id, c: cd.id },
     }));
   }
+}
+
+type Enumerator = TypeDecl["enumerators"][number];
+
+/**
+ * A last enumerator that counts the others (`N_BL_LEVELS`, `TAP_COUNT`, `MODE_MAX`): common
+ * practice in C for array sizes and loop bounds, not a value either side passes, so a Rust mirror
+ * leaves it out. Recognised by its name and by a value one past (or equal to) the largest other.
+ */
+const COUNT_NAME = /^(N|NUM|NB|COUNT|MAX)_|_(COUNT|NUM|NB|MAX|LAST|END|LIMIT)$|^(Count|Num|Max|Last|End)$/;
+function withoutCount(es: Enumerator[]): Enumerator[] {
+  if (es.length < 2) return es;
+  const last = es[es.length - 1]!;
+  const rest = es.slice(0, -1);
+  if (last.value === null || !COUNT_NAME.test(last.name) || rest.some((e) => e.value === null)) return es;
+  const max = Math.max(...rest.map((e) => e.value!));
+  return last.value === max + 1 || last.value === max || last.value === rest.length ? rest : es;
+}
+
+/** Member names without the prefix all members of the enum share (`HYD_GAIN_LOW` → `low`). */
+function memberKeys(es: Enumerator[]): string[] {
+  const names = es.map((e) => e.name);
+  let prefix = names[0] ?? "";
+  for (const n of names) while (!n.startsWith(prefix)) prefix = prefix.slice(0, -1);
+  // cut at a word boundary (`_` or a lower→upper step) so `LOW`/`LOCK` keep their common `LO`
+  let cut = 0;
+  for (let i = 1; i <= prefix.length; i++) {
+    if (prefix[i - 1] === "_" || (i < prefix.length && /[a-z0-9]/.test(prefix[i - 1]!) && /[A-Z]/.test(prefix[i]!))) cut = i;
+  }
+  if (names.length < 2) cut = 0;
+  return names.map((n) => n.slice(cut).replace(/_/g, "").toLowerCase());
+}
+
+/** For each Rust variant the C enumerator of the same member name, when every variant has one. */
+function membersByName(re: Enumerator[], ce: Enumerator[]): Enumerator[] | undefined {
+  if (!re.length || !ce.length) return undefined;
+  const rk = memberKeys(re);
+  const ck = memberKeys(ce);
+  const byKey = new Map<string, Enumerator>();
+  ck.forEach((k, i) => { if (!byKey.has(k)) byKey.set(k, ce[i]!); });
+  const out: Enumerator[] = [];
+  for (const k of rk) {
+    const c = byKey.get(k);
+    if (!c) return undefined;
+    out.push(c);
+  }
+  return out;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -502,6 +737,7 @@ function checkEnumInputs(model: Model, pairs: Pair[], out: Finding[]): void {
     if (p.rust.kind === "enum" || p.c.kind === "enum") continue;
     if (flows.reached.has(p.rust.id) && !flows.inbound.has(p.rust.id)) continue;
     const n = Math.min(p.rust.fields.length, p.c.fields.length);
+    const at = out.length;
     for (let i = 0; i < n; i++) {
       const rf = p.rust.fields[i]!;
       const cf = p.c.fields[i]!;
@@ -510,6 +746,7 @@ function checkEnumInputs(model: Model, pairs: Pair[], out: Finding[]): void {
       // (the mirror rules compare them); reading it as a Rust enum is advice, not a defect seen.
       if (e && cIntegerish(model, cf.type)) enumWarning(model, e, `field \`${rf.name}\` of \`${p.rust.name}\``, rf.range, cf.type, cf.range, out, true);
     }
+    weaken(p, out, at);
   }
 }
 
@@ -589,7 +826,11 @@ export const layoutFamily: RuleFamily = {
     const out: Finding[] = [];
     const pairs = findPairs(model);
     const reprReported = new Set<string>();
-    for (const p of pairs) checkPair(model, p, out, reprReported);
+    for (const p of pairs) {
+      const at = out.length;
+      checkPair(model, p, out, reprReported);
+      weaken(p, out, at);
+    }
     checkEnumInputs(model, pairs, out);
     checkAsserts(model, out);
     return out;

@@ -10,6 +10,18 @@ export const CXX_LINKAGE: RuleMeta = {
   why: "A C++ compiler mangles the name (e.g. with parameter types encoded), so the call links against a symbol Rust never exported.",
 };
 
+/**
+ * Whether a file is compiled as C++: a C++ source (`.cpp`, `.cc`, …), a C++ header (`.hpp`, …), or
+ * a `.h` whose text only C++ can read (a class, a template). A `.h` the C++ grammar merely read with
+ * fewer errors (C11 `_Atomic`, GCC attribute spellings) is a C header: only its C++ includers make
+ * it C++.
+ */
+function compiledAsCxx(model: Model, file: string): boolean {
+  const f = model.files.get(file);
+  if (!f || f.lang !== "cpp") return false;
+  return !/\.h$/i.test(file) || !!f.cxxSyntax;
+}
+
 export const linkageFamily: RuleFamily = {
   name: "linkage",
   rules: [CXX_LINKAGE],
@@ -29,8 +41,8 @@ export const linkageFamily: RuleFamily = {
           continue;
         }
         if (p.inHeader) {
-          const cxx = model.includersOf(p.file).filter((f) => model.files.get(f)?.lang === "cpp");
-          if (cxx.length === 0 && facts.lang !== "cpp") continue;
+          const cxx = model.includersOf(p.file).filter((f) => compiledAsCxx(model, f));
+          if (cxx.length === 0 && !compiledAsCxx(model, p.file)) continue;
           const inc = cxx[0];
           const rel = inc ? [{ range: { file: inc, line: 0, col: 0, endLine: 0, endCol: 0 }, message: "included by this C++ file" }] : [];
           const incRef = inc ? model.files.get(inc)?.includes.find((i) => model.includeTarget(i) === p.file) : undefined;

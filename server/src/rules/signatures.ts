@@ -73,6 +73,58 @@ function report(out: Finding[], model: Model, diffs: GroupedDiff[], what: string
   }
 }
 
+/** A sentence of the C declaration's comment that names the parameter as a callback it calls
+ * (`|cb| will be called for each header`, "after calling `log_func`"): the header makes it
+ * required, so a C caller passing NULL breaks the header's own contract. */
+const CALLED_DOC = /\b(will be|is|are|gets?|get) called\b|\bcalling\b|\bcalls\b|\bmust not be (NULL|null)\b|\bnon-?null\b|\brequired\b/;
+function requiredByDoc(c: FnDecl, name: string): string | undefined {
+  if (!c.doc || !name) return undefined;
+  const esc = name.replace(/[^\w]/g, "");
+  if (!esc) return undefined;
+  const named = new RegExp(`\\b${esc}\\b`);
+  return c.doc.replace(/\s*\n\s*/g, " ").split(/(?<=[.;])\s+/).find((x) => named.test(x) && CALLED_DOC.test(x) && !NULL_DOC.test(x));
+}
+
+/** The Rust function releases what this parameter points to (Box/CString/Arc::from_raw, drop). */
+function releasesParam(rust: FnDecl, name: string): boolean {
+  const own = rust.body?.ownership as { releases?: { arg: { ident?: string } }[] } | undefined;
+  return !!own?.releases?.some((r) => r.arg.ident === name);
+}
+
+/** The C pointee of a parameter is a complete struct or union (a record, not a sample buffer). */
+function recordPointee(model: Model, t: FnDecl["params"][number]["type"]): boolean {
+  const r = model.resolve(t, "c");
+  if (r.k !== "ptr") return false;
+  const to = model.resolve(r.to, "c");
+  if (to.k !== "named") return false;
+  const d = model.aggregate(to, "c");
+  return !!d && (d.kind === "struct" || d.kind === "union");
+}
+
+/**
+ * Which pointer-constness differences carry a risk, by who writes:
+ * - Rust exports (C calls Rust): Rust writing where C declares const is the error; Rust reading
+ *   a record (a struct) C lends writable, or through an inner pointer level, gives C nothing to
+ *   fear (`*const z_stream` for `z_stream *`): `info`. A read-only Rust pointer for a writable
+ *   sample buffer stays a warning (C may expect it filled). A release function's parameter is
+ *   exempt: freeing through a pointer C holds as const is common practice (C11 7.22.3.3 `free`).
+ * - Rust imports (Rust calls C): C writing through a pointer Rust declared read-only is the risk
+ *   (a warning, as before); Rust declaring writable what C promises not to write is harmless: `info`.
+ */
+function constSeverity(model: Model, rust: FnDecl, c: FnDecl, i: number, d: GroupedDiff): Finding["severity"] | null {
+  const rp = rust.params[i];
+  const cp = c.params[i];
+  if (!rp || !cp) return d.rustWrites ? "error" : "warning";
+  if (rust.role === "export") {
+    if (releasesParam(rust, rp.name)) return null;
+    if (d.rustWrites) return "error";
+    if (d.detail.startsWith("at the inner pointer level") || recordPointee(model, cp.type)) return "info";
+    return "warning";
+  }
+  if (rust.role === "import") return d.rustWrites ? "info" : "warning";
+  return d.rustWrites ? "error" : "warning";
+}
+
 export function compareSignatures(model: Model, rust: FnDecl, c: FnDecl): Finding[] {
   const out: Finding[] = [];
   const targets = model.targets;
@@ -85,8 +137,25 @@ export function compareSignatures(model: Model, rust: FnDecl, c: FnDecl): Findin
   for (let i = 0; i < n; i++) {
     const rp = rust.params[i]!;
     const cp = c.params[i]!;
-    const diffs = compareTypes(model, rp.type, cp.type, targets);
+    const diffs: GroupedDiff[] = [];
+    const sev = new Map<GroupedDiff, Finding["severity"]>();
+    for (const d of compareTypes(model, rp.type, cp.type, targets)) {
+      if (d.kind === "nullable" && requiredByDoc(c, cp.name)) continue;
+      if (d.kind === "const") {
+        const s = constSeverity(model, rust, c, i, d);
+        if (s === null) continue;
+        if (s) sev.set(d, s);
+      }
+      diffs.push(d);
+    }
+    const at = out.length;
     report(out, model, diffs, paramLabel(i, cp.name || rp.name), rust, c, rp.range, cp.range, { param: i }, false);
+    for (let k = at; k < out.length; k++) {
+      const d = diffs.find((x) => out[k]!.data?.diff === x.kind && out[k]!.message.includes(x.detail));
+      const s = d && sev.get(d);
+      if (s) out[k]!.severity = s;
+      if (s === "info" && d) out[k]!.message += d.rustWrites ? "; C promises not to write through it, so nothing Rust lends is at risk (advice)" : "; Rust only reads through it, so nothing C holds changes (advice: the header could say const)";
+    }
   }
   report(out, model, compareTypes(model, rust.ret, c.ret, targets), "return type", rust, c, rust.retRange ?? rust.nameRange, c.retRange ?? c.nameRange, { ret: true }, true);
   return out;
@@ -139,7 +208,7 @@ function nullableFnFields(model: Model, out: Finding[]): void {
         `\`${rd.name}.${rf.name}\` is a non-nullable \`extern "C" fn\`, but C may leave \`${cd.name}.${cf.name}\` NULL (${why}); a NULL read as a Rust fn pointer is undefined behaviour: declare it \`Option<unsafe extern "C" fn(..)>\` and check it before calling`,
         [{ range: cf.range, message: `C field \`${cf.name}\` of \`${cd.name}\` (matched because ${p.via})` }],
         { data: { rustType: rd.id, cType: cd.id, field: i, diff: "nullable" } });
-      f.severity = "warning";
+      f.severity = p.weak ? "info" : "warning";
       out.push(f);
     }
   }
