@@ -208,6 +208,14 @@ function isByte(t: AbiType): boolean {
 function comparePointee(model: Model, rt: AbiType, ct: AbiType, triple: Triple, level: number): TypeDiff | null {
   const d = compareOn(model, rt, ct, triple, level + 1);
   if (!d) return null;
+  // A pointer to a whole array and a pointer to its first element hold the same address and
+  // reach the same items (C11 §6.3.2.1p3: an array converts to a pointer to its first element;
+  // the Rust Reference: an array's elements are laid out contiguously): `*const [u32; 256]` for a
+  // `const uint32_t *` table is the same pointer.
+  const ra = model.resolve(rt, "rust");
+  const ca = model.resolve(ct, "c");
+  if (ra.k === "array" && ca.k !== "array" && !compareOn(model, ra.of, ct, triple, level + 1)) return null;
+  if (ca.k === "array" && ra.k !== "array" && !compareOn(model, rt, ca.of, triple, level + 1)) return null;
   // Byte buffers: `*const u8`/`*const i8` for `const char *` is common practice (strings, raw
   // bytes); the signedness of the byte does not change what the pointer addresses.
   if (d.kind === "sign" && isByte(rt) && isByte(ct)) return null;
