@@ -247,3 +247,33 @@ describe("the run always ends", () => {
     expect(r3?.error?.code).toBe(-32600); // InvalidRequest: the server is shutting down
   }, HANG);
 });
+
+describe("budgets and skipped files", () => {
+  test("a file started after the run's time budget is skipped with a notice naming the setting", async () => {
+    const { extractFile, setRunDeadline } = await import("../server/src/extract/index.js");
+    const { initParsers } = await import("../server/src/parse/parser.js");
+    await initParsers();
+    setRunDeadline(Date.now() - 1);
+    try {
+      const f = extractFile("/ws/late.h", "int late(void);\n");
+      expect(f.fns).toEqual([]);
+      expect(f.notices.map((n) => n.message)).toEqual([expect.stringMatching(/total time budget .*max_total_seconds/)]);
+    } finally {
+      setRunDeadline(Infinity);
+    }
+    expect(extractFile("/ws/late.h", "int late(void);\n").fns.map((x) => x.name)).toEqual(["late"]);
+  });
+
+  test("skipped files are listed; --fail-on-skip makes them fail the run; max_total_seconds is validated", () => {
+    const dir = workspace({ ".ferrule.toml": "max_file_bytes = 300\n", "include/big.h": `/* ${"x".repeat(2000)} */\nint big(void);\n` });
+    const r = ferrule(["check", "."], dir);
+    expect(r.err).toMatch(/1 file\(s\) not read .*include\/big\.h/);
+    const clean = workspace({ ".ferrule.toml": "max_file_bytes = 300\ntargets = [\"x86_64\"]\n", "include/big.h": `/* ${"x".repeat(2000)} */\nint big(void);\n` });
+    expect(ferrule(["check", "."], clean).code).toBe(0); // long is 8 bytes on x86_64: no slip
+    expect(ferrule(["check", "--fail-on-skip", "."], clean).code).toBe(1);
+    const bad = workspace({ ".ferrule.toml": "max_total_seconds = 0\n" });
+    const b = ferrule(["check", "."], bad);
+    expect(b.code).toBe(2);
+    expect(b.err).toMatch(/key `max_total_seconds`: expected a number of seconds above 0/);
+  });
+});

@@ -14,6 +14,9 @@ export interface FerruleConfig {
   includePaths: string[];
   exclude: string[];
   maxFileBytes: number;
+  /** The whole run's time budget in seconds (reading and extraction): files not read by then are
+   * skipped and listed. */
+  maxTotalSeconds: number;
   /** C/C++ export/attribute macros to blank before reading (`SONAR_API int f(void);`). */
   stripMacros: string[];
   /** Macros of the build for the C preprocessor (`defines`): NAME or NAME(params) → replacement. */
@@ -32,6 +35,7 @@ export const DEFAULTS: FerruleConfig = {
   includePaths: [],
   exclude: [],
   maxFileBytes: 2_000_000,
+  maxTotalSeconds: 900,
   stripMacros: [],
   defines: {},
   severity: {},
@@ -47,7 +51,7 @@ export class ConfigError extends Error {
 
 const SEVERITIES = ["error", "warning", "info", "hint", "off"];
 /** Top-level settings, and the tables handed to rule families (`[ports]`, `[layout]`). */
-const TOP_KEYS = ["targets", "include_paths", "exclude", "strip_macros", "max_file_bytes", "features", "defines", "rules"];
+const TOP_KEYS = ["targets", "include_paths", "exclude", "strip_macros", "max_file_bytes", "max_total_seconds", "features", "defines", "rules"];
 const FAMILY_TABLES = ["ports", "layout"];
 
 /** ` — did you mean \`x\`?` for a close name (edit distance ≤ 2), else "". */
@@ -129,6 +133,13 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
         const n = typeof v === "bigint" ? Number(v) : v;
         if (typeof n !== "number" || !Number.isInteger(n) || n < 1) throw new ConfigError(file, k, `expected a whole number of bytes of at least 1 (got ${typeof v === "string" ? JSON.stringify(v) : String(v)})`);
         cfg.maxFileBytes = n;
+        break;
+      }
+      case "max_total_seconds":
+      case "maxTotalSeconds": {
+        const n = typeof v === "bigint" ? Number(v) : v;
+        if (typeof n !== "number" || !Number.isFinite(n) || n <= 0) throw new ConfigError(file, k, `expected a number of seconds above 0 (got ${typeof v === "string" ? JSON.stringify(v) : String(v)})`);
+        cfg.maxTotalSeconds = n;
         break;
       }
       case "features": {

@@ -12,7 +12,7 @@ import * as fs from "node:fs";
 import * as os from "node:os";
 import { createHash } from "node:crypto";
 import { Worker, isMainThread, parentPort, workerData } from "node:worker_threads";
-import { extractFile, initParsers, skippedFacts } from "../extract/index.js";
+import { extractFile, getRunDeadline, initParsers, setRunDeadline, skippedFacts } from "../extract/index.js";
 import { emptyFacts } from "../extract/common.js";
 import { langOf, parseText } from "../parse/parser.js";
 import type { FileFacts } from "../model/types.js";
@@ -125,7 +125,7 @@ export function loadFiles(files: string[], opts: ParallelOptions): Promise<Loade
     mode,
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
-    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, preproc: opts.preproc },
+    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, preproc: opts.preproc, runDeadline: getRunDeadline() },
     local: (f) => readFacts(f, opts.maxFileBytes, mode, opts.stripMacros, opts.preproc),
     receive: (r) => shareStrings(r, pool), // one copy of each repeated string (see share-strings.ts)
     onProgress: opts.onProgress,
@@ -139,7 +139,7 @@ export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> 
     mode: "pack",
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
-    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress, preproc: opts.preproc },
+    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress, preproc: opts.preproc, runDeadline: getRunDeadline() },
     local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false, opts.preproc),
     // facts sent as they are (a structured clone): one copy of each repeated string
     receive: (r) => {
@@ -231,7 +231,8 @@ async function runPool<I, R>(items: I[], job: PoolJob<I, R>): Promise<R[]> {
 export function runWorkerIfAsked(): boolean {
   if (isMainThread || !parentPort || (workerData as { tag?: string } | null)?.tag !== WORKER_TAG) return false;
   const port = parentPort;
-  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[]; compress?: boolean; preproc?: PreprocData };
+  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[]; compress?: boolean; preproc?: PreprocData; runDeadline?: number };
+  if (typeof data.runDeadline === "number") setRunDeadline(data.runDeadline);
   const mode = data.mode;
   // the heap of a worker that packs its results holds only garbage between batches
   const budget = new HeapBudget(32);

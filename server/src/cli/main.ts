@@ -14,6 +14,7 @@ import { formatJson, formatSarif, formatText, toJsonFinding, type JsonFinding } 
 import { formatLayoutText, layoutTypes } from "./layout-cmd.js";
 import { makeBaseline, newSince, readBaseline } from "./baseline.js";
 import { readSmallRegularFile, UnsafeFileError } from "../analysis/textio.js";
+import { setRunDeadline } from "../extract/index.js";
 import { findProjectRoot } from "../analysis/project.js";
 
 export const VERSION = "0.1.0";
@@ -24,7 +25,7 @@ const HELP = `ferrule ${VERSION} — checks the C ABI seam between Rust and C/C+
 
 usage:
   ferrule check [--format text|json|sarif] [--target TRIPLE]... [--config FILE] [--show-fixes]
-                [--baseline FILE [--update-baseline]] [PATH...]
+                [--baseline FILE [--update-baseline]] [--fail-on-skip] [PATH...]
   ferrule layout [--target TRIPLE]... [--format json|text] PATH...
   ferrule lsp --stdio
 
@@ -40,6 +41,8 @@ interface Opts {
   config?: string;
   showFixes: boolean;
   stdio: boolean;
+  /** --fail-on-skip: a file skipped for size, time or an error fails the run (exit 1). */
+  failOnSkip: boolean;
   baseline?: string;
   updateBaseline: boolean;
 }
@@ -48,7 +51,7 @@ function parseArgs(argv: string[]): Opts {
   const [cmd, ...rest] = argv;
   if (!cmd || cmd === "--help" || cmd === "-h" || cmd === "help") throw new UsageError("");
   if (!["check", "layout", "lsp"].includes(cmd)) throw new UsageError(`unknown command \`${cmd}\` (expected check, layout or lsp)`);
-  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false, updateBaseline: false };
+  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false, failOnSkip: false, updateBaseline: false };
   for (let i = 0; i < rest.length; i++) {
     const a = rest[i]!;
     const val = (): string => {
@@ -73,6 +76,7 @@ function parseArgs(argv: string[]): Opts {
     else if (flag === "--show-fixes") o.showFixes = true;
     else if (flag === "--baseline") o.baseline = val();
     else if (flag === "--update-baseline") o.updateBaseline = true;
+    else if (flag === "--fail-on-skip") o.failOnSkip = true;
     else if (flag === "--stdio") o.stdio = true;
     // Options language clients add when they start a server (vscode-languageclient appends
     // --clientProcessId=N); vscode-languageserver reads them from argv itself.
@@ -199,6 +203,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   // `check` reads the workspace in chunks of related files (analysis/chunks.ts): the findings are
   // those of one model of everything, with one chunk's facts in memory at a time.
   const chunkFiles = Number(process.env.FERRULE_CHUNK_FILES) || undefined;
+  setRunDeadline(Date.now() + cfg.maxTotalSeconds * 1000);
   // the project root (.ferrule.toml, Cargo workspace, compile_commands.json): a sub-folder is
   // read with its project, and only its own findings are reported
   const projectRoot = roots.length === 1 ? findProjectRoot(roots[0]!) : undefined;
@@ -243,11 +248,16 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
       json = fresh;
     }
   }
+  // files not read (size, time, errors): listed, and with --fail-on-skip they fail the run
+  const skipped = json.filter((f) => f.rule === "file-skipped" && f.message.startsWith("skipped:"));
+  if (skipped.length && o.format === "text") {
+    io.stderr(`ferrule: ${skipped.length} file(s) not read (their findings are missing): ${skipped.slice(0, 10).map((f) => f.file).join(", ")}${skipped.length > 10 ? ", …" : ""}\n`);
+  }
   phase("findings");
   if (o.format === "json") io.stdout(formatJson(json));
   else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
   else io.stdout(formatText(json, io.isTTY && !process.env.NO_COLOR) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
-  return json.some((f) => f.severity === "error") ? 1 : 0;
+  return json.some((f) => f.severity === "error") || (o.failOnSkip && skipped.length > 0) ? 1 : 0;
 }
 
 export async function main(): Promise<void> {

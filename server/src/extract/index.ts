@@ -102,6 +102,17 @@ function reusable(old: Tree | undefined, lang: Lang): Tree | undefined {
 
 export const DEFAULT_TIME_BUDGET_MS = 10_000;
 
+/** The end of the whole run's time budget (`Date.now()` ms; set by the CLI and handed to worker
+ * threads): a file started after it is skipped, and no file's budget (its re-parses included)
+ * reaches past it, so crafted files cannot add up to an unbounded run. */
+let runDeadline = Infinity;
+export function setRunDeadline(ms: number): void {
+  runDeadline = ms;
+}
+export function getRunDeadline(): number {
+  return runDeadline;
+}
+
 function partlyRead(file: string, budget: number): FileFacts["notices"][number] {
   return {
     rule: "file-skipped",
@@ -127,8 +138,13 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
   if (text.charCodeAt(0) === 0xfeff) text = " " + text.slice(1); // BOM: keep columns stable
   let tree: Tree | undefined;
   let expandedTree = false;
-  const budget = opts.timeBudgetMs ?? DEFAULT_TIME_BUDGET_MS;
-  setExtractDeadline(performance.now() + budget, budget);
+  const left = runDeadline - Date.now();
+  if (left <= 0) return skippedFacts(file, "the run's total time budget was spent before this file was read (setting max_total_seconds)");
+  const budget = Math.max(1, Math.min(opts.timeBudgetMs ?? DEFAULT_TIME_BUDGET_MS, left));
+  const t0 = performance.now();
+  setExtractDeadline(t0 + budget, budget);
+  // what is left of this file's budget, for a re-parse of the same text
+  const rest = () => Math.max(1, budget - (performance.now() - t0));
   const timed = (f: FileFacts): FileFacts => {
     if (extractDeadlinePassed()) f.notices.push(partlyRead(file, budget));
     return f;
@@ -161,7 +177,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
       // C, but the bundled C grammar misreads some C11/GCC spellings the C++ grammar reads
       // (`union __attribute__((aligned(16))) u {…}`, `_Alignas(8) long x;`): use the C++ tree
       // when it has fewer errors.
-      const alt = parseText("cpp", src, reusable(old, "cpp"));
+      const alt = parseText("cpp", src, reusable(old, "cpp"), rest());
       if (countErrors(alt) < countErrors(tree)) {
         tree.delete();
         tree = alt;
@@ -173,7 +189,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
       if (blanked !== undefined) {
         const treeLang: Lang = tree.getLanguage() === getLanguage("cpp") ? "cpp" : "c";
         tree.delete();
-        tree = parseText(treeLang, blanked);
+        tree = parseText(treeLang, blanked, undefined, rest());
       }
     }
     // the caller would edit a kept tree with the source's offsets: keep none of expanded text
