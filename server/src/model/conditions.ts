@@ -84,7 +84,8 @@ function readPred(ts: Tok[], pos: number, depth = 0): [Cond | undefined, number]
       if (ts[p]?.v === ",") p++;
       else if (ts[p]?.v !== ")") return [undefined, skipTo(ts, p)];
     }
-    p++; // ")"
+    if (ts[p]?.v !== ")") return [undefined, ts.length]; // unclosed
+    p++;
     if (t.v === "not") return [of.length === 1 ? { k: "not", of: of[0]! } : undefined, p];
     return [{ k: t.v, of }, p];
   }
