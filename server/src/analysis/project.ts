@@ -14,7 +14,7 @@
 import * as fs from "node:fs";
 import * as path from "node:path";
 import { parse as parseToml } from "smol-toml";
-import { anyOf, type Cond } from "../model/conditions.js";
+import { allOf, anyOf, type Cond } from "../model/conditions.js";
 import type { ModDecl } from "../model/types.js";
 import type { CrateInfo, FileUnit, ProjectInfo } from "../model/project.js";
 
@@ -269,7 +269,8 @@ function readCompileCommands(file: string): CompileEntry[] {
   for (const e of j.slice(0, 100_000)) {
     const t = tbl(e);
     if (typeof t.file !== "string") continue;
-    const dir = typeof t.directory === "string" ? t.directory : path.dirname(file);
+    // (a relative `directory` is read against the database's folder, never the process's)
+    const dir = typeof t.directory === "string" ? path.resolve(path.dirname(file), t.directory) : path.dirname(file);
     const args = Array.isArray(t.arguments) ? strs(t.arguments) : typeof t.command === "string" ? splitCommand(t.command) : [];
     const defines: Record<string, string> = {};
     const includes: string[] = [];
@@ -374,9 +375,19 @@ export function discoverProject(root: string, sources: readonly string[], modsOf
         cs.push(cond);
         conds.set(file, cs);
         for (const d of modsOf(file) ?? []) {
-          const c = d.cond ? (cond ? { k: "all" as const, of: [cond, d.cond] } : d.cond) : cond;
+          const c = allOf([cond, d.cond]);
+          // `#[cfg_attr(PRED, path = "…")]`: each file where its PRED holds
+          for (const cp of d.cfgPaths ?? []) {
+            const [cand] = modCandidates(file, isRoot, { ...d, path: cp.path });
+            if (cand && sourceSet.has(cand)) visit(cand, false, allOf([c, cp.cond]), depth + 1);
+          }
           for (const cand of modCandidates(file, isRoot, d)) {
-            if (sourceSet.has(cand)) { visit(cand, false, c, depth + 1); break; }
+            if (sourceSet.has(cand)) {
+              // (the plain file is used only where no cfg_attr path applies)
+              const other = d.cfgPaths?.length && !d.path ? allOf([c, { k: "not", of: anyOf(d.cfgPaths.map((x) => x.cond)) }]) : c;
+              visit(cand, false, other, depth + 1);
+              break;
+            }
           }
         }
       };

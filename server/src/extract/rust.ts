@@ -156,6 +156,8 @@ interface AttrInfo {
   link?: string;
   /** `#[path = "…"]`. */
   path?: string;
+  /** `#[cfg_attr(PRED, path = "…")]`. */
+  cfgPaths: { cond: Cond; path: string }[];
   /** A binding attribute of another runtime (`#[wasm_bindgen]`): an extern block under it is not a C import. */
   foreignBinding?: string;
 }
@@ -181,7 +183,7 @@ function onlyInTests(c: Cond): boolean {
 }
 
 function attrsBefore(n: Node): AttrInfo {
-  const info: AttrInfo = { texts: [], noMangle: false, repr: [], derives: [], cfgTest: false, cfgs: [], cfgExport: [] };
+  const info: AttrInfo = { texts: [], noMangle: false, repr: [], derives: [], cfgTest: false, cfgs: [], cfgExport: [], cfgPaths: [] };
   let p = n.previousNamedSibling;
   while (p && (p.type === "attribute_item" || p.type === "line_comment" || p.type === "block_comment")) {
     if (p.type === "attribute_item") {
@@ -235,6 +237,10 @@ function readAttr(a: Node, info: AttrInfo): void {
       for (const at of ca.attrs) {
         const t = at.replace(/^unsafe\s*\(\s*([\s\S]*)\)$/, "$1").trim();
         if (t === "no_mangle") info.cfgExport.push({ cond: ca.cond });
+        else if (/^path\s*=/.test(t)) {
+          const m = /^path\s*=\s*"([^"]*)"$/.exec(t);
+          if (m) info.cfgPaths.push({ cond: ca.cond, path: m[1]! });
+        }
         else if (/^export_name\s*=/.test(t)) {
           const m = /^export_name\s*=\s*"([^"]*)"$/.exec(t);
           info.cfgExport.push({ cond: ca.cond, name: m?.[1] });
@@ -473,6 +479,7 @@ export function extractRust(file: string, tree: Tree, itemCache?: ItemCache, tex
           } else {
             const decl: ModDecl = { name, inline: [...modStack], line: n.startPosition.row };
             if (a.path) decl.path = a.path;
+            if (a.cfgPaths.length) decl.cfgPaths = a.cfgPaths;
             const c = allOf([...condStack, cond]);
             if (c) decl.cond = c;
             (facts.mods ??= []).push(decl);

@@ -177,6 +177,22 @@ export class Model {
     return archVariant(rel);
   }
 
+  /** The configured targets on which both items' conditions can hold. */
+  targetsWhereBoth(a: FnDecl, b: FnDecl): Triple[] {
+    const ca = this.condOf(a);
+    const cb = this.condOf(b);
+    if (!ca && !cb) return [...this.targets];
+    const joint = this.config.project?.files.get(a.file)?.crate === this.config.project?.files.get(b.file)?.crate;
+    const ea = this.envsOf(a.file);
+    const eb = this.envsOf(b.file);
+    const out = new Set<Triple>();
+    ea.forEach((e, i) => {
+      const ok = joint ? canHold([ca, cb], [e]) : canHold([ca], [e]) && !!eb[i] && canHold([cb], [eb[i]!]);
+      if (ok && e.triple) out.add(e.triple);
+    });
+    return this.targets.filter((t) => out.has(t));
+  }
+
   /** Whether two items' files share a link unit. */
   shareUnit(a: string, b: string): boolean {
     const ub = this.unitsOf(b);

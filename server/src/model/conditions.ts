@@ -84,7 +84,8 @@ function readPred(ts: Tok[], pos: number, depth = 0): [Cond | undefined, number]
       if (ts[p]?.v === ",") p++;
       else if (ts[p]?.v !== ")") return [undefined, skipTo(ts, p)];
     }
-    p++; // ")"
+    if (ts[p]?.v !== ")") return [undefined, ts.length]; // unclosed
+    p++;
     if (t.v === "not") return [of.length === 1 ? { k: "not", of: of[0]! } : undefined, p];
     return [{ k: t.v, of }, p];
   }
@@ -176,11 +177,11 @@ interface TargetCfg { arch: string; os: string; family: string; env: string; wid
 /** What `rustc --print cfg --target=TRIPLE` sets for each configured target (baseline target
  * features only). */
 export const TARGET_CFG: Record<Triple, TargetCfg> = {
-  "x86_64-unknown-linux-gnu": { arch: "x86_64", os: "linux", family: "unix", env: "gnu", width: "64", endian: "little", vendor: "unknown", features: ["fxsr", "sse", "sse2"], atomics: ["8", "16", "32", "64", "ptr"] },
-  "aarch64-unknown-linux-gnu": { arch: "aarch64", os: "linux", family: "unix", env: "gnu", width: "64", endian: "little", vendor: "unknown", features: ["neon", "fp-armv8"], atomics: ["8", "16", "32", "64", "128", "ptr"] },
+  "x86_64-unknown-linux-gnu": { arch: "x86_64", os: "linux", family: "unix", env: "gnu", width: "64", endian: "little", vendor: "unknown", abi: "", features: ["fxsr", "sse", "sse2"], atomics: ["8", "16", "32", "64", "ptr"] },
+  "aarch64-unknown-linux-gnu": { arch: "aarch64", os: "linux", family: "unix", env: "gnu", width: "64", endian: "little", vendor: "unknown", abi: "", features: ["neon", "fp-armv8"], atomics: ["8", "16", "32", "64", "128", "ptr"] },
   "armv7-unknown-linux-gnueabihf": { arch: "arm", os: "linux", family: "unix", env: "gnu", width: "32", endian: "little", vendor: "unknown", abi: "eabihf", features: ["v7", "vfp3", "d32", "neon", "thumb2", "dsp"], atomics: ["8", "16", "32", "64", "ptr"] },
-  "i686-unknown-linux-gnu": { arch: "x86", os: "linux", family: "unix", env: "gnu", width: "32", endian: "little", vendor: "unknown", features: ["fxsr", "sse", "sse2"], atomics: ["8", "16", "32", "64", "ptr"] },
-  "x86_64-pc-windows-msvc": { arch: "x86_64", os: "windows", family: "windows", env: "msvc", width: "64", endian: "little", vendor: "pc", features: ["fxsr", "sse", "sse2"], atomics: ["8", "16", "32", "64", "ptr"] },
+  "i686-unknown-linux-gnu": { arch: "x86", os: "linux", family: "unix", env: "gnu", width: "32", endian: "little", vendor: "unknown", abi: "", features: ["fxsr", "sse", "sse2"], atomics: ["8", "16", "32", "64", "ptr"] },
+  "x86_64-pc-windows-msvc": { arch: "x86_64", os: "windows", family: "windows", env: "msvc", width: "64", endian: "little", vendor: "pc", abi: "", features: ["fxsr", "sse", "sse2"], atomics: ["8", "16", "32", "64", "128", "ptr"] },
 };
 
 export interface BuildSettings {
@@ -214,7 +215,7 @@ export function envsFor(targets: readonly Triple[], b: BuildSettings = {}): Cond
       put("target_pointer_width", c.width);
       put("target_endian", c.endian);
       put("target_vendor", c.vendor);
-      if (c.abi) put("target_abi", c.abi);
+      if (c.abi !== undefined) put("target_abi", c.abi);
       for (const f of c.features) put("target_feature", f);
       for (const a of c.atomics) put("target_has_atomic", a);
       put("panic", "unwind");

@@ -222,6 +222,8 @@ export interface ModDecl {
   name: string;
   /** `#[path = "…"]`, as written. */
   path?: string;
+  /** `#[cfg_attr(PRED, path = "…")]`: the module's file where PRED holds. */
+  cfgPaths?: { cond: Cond; path: string }[];
   /** The inline modules (`mod a { mod b; }`) it is declared in, outermost first. */
   inline: string[];
   /** The declaration's `#[cfg(…)]` (with its inline modules'). */

@@ -4,7 +4,7 @@
 import type { Model } from "../model/boundary.js";
 import type { FnDecl, Range } from "../model/types.js";
 import { condText } from "../model/conditions.js";
-import { finding, type Finding, type GatheredItem, type RuleFamily, type RuleMeta } from "./api.js";
+import { finding, targetPhrase, type Finding, type GatheredItem, type RuleFamily, type RuleMeta } from "./api.js";
 
 export const NO_C_DECLARATION: RuleMeta = {
   id: "no-c-declaration",
@@ -59,7 +59,8 @@ const ISA_SUFFIX = /_(neon|sve2?|sse[234]?|ssse3|sse41|sse42|avx2?|avx512\w*|avx
 function oneSided(model: Model, e: FnDecl): "runtime" | "generated" | "unreached" | undefined {
   if (/^Java_[A-Za-z0-9]/.test(e.symbol)) return "runtime";
   const u = model.fileUnit(e.file);
-  if (u?.kind === "unreached") return "unreached";
+  // (a Rust file no target compiles, or an example, test or bench program: not the library's API)
+  if (u?.kind === "unreached" || u?.kind === "example" || u?.kind === "test" || u?.kind === "bench") return "unreached";
   const crate = u?.crate ? model.config.project?.crates.get(u.crate) : undefined;
   if (crate?.buildScript && !crate.hasHeader) return "generated";
   return undefined;
@@ -219,7 +220,10 @@ export const symbolsFamily: RuleFamily = {
       for (let j = 1; j < definers.length; j++) {
         const d = definers[j]!;
         const first = definers.slice(0, j).find((x) => model.mayLinkTogether(x, d));
-        if (first) out.push(finding(DUPLICATE_SYMBOL, d.nameRange, `\`${d.symbol}\` is defined more than once`, [{ range: first.nameRange, message: "also defined here" }]));
+        if (!first) continue;
+        const where = model.targetsWhereBoth(first, d);
+        const targets = where.length < model.targets.length ? where : undefined;
+        out.push(finding(DUPLICATE_SYMBOL, d.nameRange, `\`${d.symbol}\` is defined more than once${targets ? targetPhrase(targets, model.targets) : ""}`, [{ range: first.nameRange, message: "also defined here" }], targets ? { targets } : {}));
       }
     }
     return out;

@@ -1,0 +1,5 @@
+/* CPU feature probe, x86 build. */
+#include <stdint.h>
+#include "beam.h"
+
+uint32_t beam_cpu_features(void) { return 1u; }
