@@ -46,7 +46,7 @@ export interface PreprocResult {
   text: string;
   changed: boolean;
   /** Column in the source of a column of the expanded text on `line` (lines are the same). */
-  mapCol: (line: number, col: number) => number;
+  mapCol: (line: number, col: number, end?: boolean) => number;
   /** Files read through #include (for cache keys). */
   reads: string[];
   /** A key of the macro environment that came from outside the file (included files' texts,
@@ -395,14 +395,20 @@ class Run {
     const first = toks[i]!;
     const m = this.table.resolve(first.t);
     if (m === undefined) return i + 1;
-    if (m === AMBIGUOUS) { this.ambiguous.add(first.t); return i + 1; }
+    if (m === AMBIGUOUS) {
+      if ((this.table.map.get(first.t)?.defs.length ?? 0) > 1) this.ambiguous.add(first.t);
+      return i + 1;
+    }
     if (m.params && toks[i + 1]?.t !== "(") return i + 1;
     let at = i;
     const reader: Reader = {
       next: () => (at < limit ? toks[at++] : undefined),
       peek: () => (at < limit ? toks[at] : undefined),
     };
-    const ex = new Expander(this.table, { maxSteps: 50_000 });
+    // an expansion that runs into a macro ferrule cannot decide is not applied at all: half an
+    // expansion would read as code nobody wrote
+    let unsure: string | undefined;
+    const ex = new Expander(this.table, { maxSteps: 50_000, onAmbiguous: (name) => { unsure ??= name; return undefined; } });
     const out: Tok[] = [];
     try {
       ex.step(reader, out);
@@ -410,6 +416,10 @@ class Run {
     } catch (e) {
       if (e instanceof ExpansionLimit) return i + 1;
       throw e;
+    }
+    if (unsure !== undefined) {
+      if ((this.table.map.get(unsure)?.defs.length ?? 0) > 1) this.ambiguous.add(unsure);
+      return i + 1;
     }
     if (out.length === 1 && out[0] === first) return i + 1;
     const last = toks[at - 1]!;
@@ -484,14 +494,20 @@ export function preprocess(file: string, text: string, env: PreprocEnv): Preproc
   }
   parts.push(text.slice(pos));
   const out = parts.join("");
-  const mapCol = (l: number, c: number): number => {
+  const mapCol = (l: number, c: number, end = false): number => {
     const arr = segs.get(l);
     if (!arr) return c;
     let shift = 0;
     for (const s of arr) {
       if (c < s.outStart) return c - shift;
-      if (c === s.outStart) return s.srcStart;
-      if (c <= s.outEnd) return s.srcEnd;
+      // a start inside an expansion is the macro use's start; an end inside it, the use's end
+      if (!end) {
+        if (c < s.outEnd) return s.srcStart;
+        if (c === s.outEnd) return s.srcEnd;
+      } else {
+        if (c === s.outStart) return s.srcStart;
+        if (c <= s.outEnd) return s.srcEnd;
+      }
       shift = s.outEnd - s.srcEnd;
     }
     return c - shift;
