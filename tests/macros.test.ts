@@ -40,6 +40,21 @@ describe("macros fixture (hydrophone)", () => {
   });
 });
 
+describe("a macro whose definition depends on an undecided build macro (one template file per bit depth)", () => {
+  it("gives macro-may-define, not a duplicate `bitfn` or a missing definition; a plainly missing one is still reported", async () => {
+    const { findings } = await analyze({
+      "depth.h": "#if STACK_DEPTH == 8\n#define bitfn(x) x##_8bit\n#else\n#define bitfn(x) x##_16bit\n#endif\nvoid seis_stack_init_8bit(int *c);\nvoid seis_stack_init_16bit(int *c);\nvoid seis_stack_free(int *c);\n",
+      "stack_tmpl.c": "#include \"depth.h\"\nvoid bitfn(seis_stack_init)(int *c) { *c = 0; }\n",
+      "stack2_tmpl.c": "#include \"depth.h\"\nvoid bitfn(seis_stack_init)(int *c) { *c = 1; }\n",
+      "stack.rs": "#[no_mangle]\npub extern \"C\" fn seis_stack_count() -> i32 { 0 }\n",
+    });
+    const serious = findings.filter((f) => f.severity === "error" || f.severity === "warning").map((f) => `${f.rule} ${f.range.file.split("/").pop()}:${f.range.line + 1}`);
+    expect(serious.filter((x) => !x.startsWith("no-c-declaration"))).toEqual(["no-definition depth.h:8"]);
+    const may = findings.filter((f) => f.rule === "macro-may-define").map((f) => f.range.line + 1).sort();
+    expect(may).toEqual([6, 7]);
+  });
+});
+
 describe("preprocessor: the expanded text keeps the source's lines and maps columns back", () => {
   const env = { targets: ALL_TRIPLES };
   it("a use expands on its line; a multi-line invocation joins onto its first line", () => {

@@ -198,8 +198,10 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
         };
         // `void bitfn(dav1d_init)(void) {…}`: the grammar reads the unexpanded macro as the
         // function's name; that name is no symbol, the macro items say what it may define
+        // (unless a candidate reading keeps the name: `#define dav1d_log dav1d_log`)
         const macroNames = new Set(pp.undecided.map((u) => u.macro));
-        facts.fns = facts.fns.filter((f) => !(macroNames.has(f.name) && pp!.undecided.some((u) => u.macro === f.name && u.s >= 0)));
+        for (const u of pp.undecided) if (u.keepsName) macroNames.delete(u.macro);
+        if (macroNames.size) facts.fns = facts.fns.filter((f) => !macroNames.has(f.name));
         for (const u of pp.undecided) {
           const a = pos(u.s), b = pos(u.e);
           (facts.macroItems ??= []).push({ macro: u.macro, names: u.names, range: { file, line: a.line, col: a.col, endLine: b.line, endCol: b.col }, c: true });

@@ -55,7 +55,7 @@ export interface PreprocResult {
   /** Names of macros ferrule could not expand because their definitions disagree. */
   ambiguous: string[];
   /** Unexpanded uses of such macros: the identifiers each candidate definition would make. */
-  undecided: { macro: string; names: string[]; s: number; e: number }[];
+  undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[];
   expansions: number;
 }
 
@@ -211,7 +211,7 @@ class Run {
   readonly included = new Set<string>();
   readonly ambiguous = new Set<string>();
   /** Uses of a macro ferrule could not decide, with the names each candidate definition makes. */
-  readonly undecided: { macro: string; names: string[]; s: number; e: number }[] = [];
+  readonly undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[] = [];
   expansions = 0;
   private depth = 0;
 
@@ -403,6 +403,7 @@ class Run {
   private noteUndecided(toks: Tok[], i: number, limit: number): void {
     const first = toks[i]!;
     const names = new Set<string>();
+    let keepsName = false;
     let end = i;
     const variants = (name: string): MacroTable[] => {
       const e = this.table.map.get(name);
@@ -438,9 +439,13 @@ class Run {
         while (ex.hasPending()) ex.step(r, out);
       } catch { continue; }
       end = Math.max(end, at - 1);
-      for (const o of out) if (o.k === K.Ident && o.t !== first.t) names.add(o.t);
+      for (const o of out) {
+        if (o.k !== K.Ident) continue;
+        if (o.t === first.t) keepsName = true;
+        else names.add(o.t);
+      }
     }
-    if (names.size && names.size <= 64) this.undecided.push({ macro: first.t, names: [...names], s: first.s, e: toks[end]!.e });
+    if (names.size && names.size <= 64) this.undecided.push({ macro: first.t, names: [...names], s: first.s, e: toks[end]!.e, keepsName });
   }
 
   /** Expands the macro use starting at toks[i]; returns the index after what it consumed. */
