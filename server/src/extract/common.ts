@@ -4,18 +4,18 @@ import type { Node } from "../parse/parser.js";
 import type Parser from "web-tree-sitter";
 import type { AbiType, FileFacts, Lang, Range } from "../model/types.js";
 
-let columnMap: ((line: number, col: number) => number) | undefined;
+let columnMap: ((line: number, col: number, end?: boolean) => number) | undefined;
 
 /** While a file read through the preprocessor is extracted: maps a column of the expanded text
  * to the source's (lines are the same), so every range points at the source. */
-export function setColumnMap(m: ((line: number, col: number) => number) | undefined): void {
+export function setColumnMap(m: ((line: number, col: number, end?: boolean) => number) | undefined): void {
   columnMap = m;
 }
 
 export function rangeOf(file: string, n: Node): Range {
   const s = n.startPosition;
   const e = n.endPosition;
-  if (columnMap) return { file, line: s.row, col: columnMap(s.row, s.column), endLine: e.row, endCol: columnMap(e.row, e.column) };
+  if (columnMap) return { file, line: s.row, col: columnMap(s.row, s.column), endLine: e.row, endCol: columnMap(e.row, e.column, true) };
   return { file, line: s.row, col: s.column, endLine: e.row, endCol: e.column };
 }
 

@@ -17,6 +17,12 @@ export { initParsers };
 
 export const DEFAULT_MAX_FILE_BYTES = 2_000_000;
 
+function lineStarts(text: string): number[] {
+  const out = [0];
+  for (let i = text.indexOf("\n"); i >= 0; i = text.indexOf("\n", i + 1)) out.push(i + 1);
+  return out;
+}
+
 const ALLOW_RE = /ferrule-allow\(([^)]*)\)\s*(?::\s*(.*?))?\s*(?:\*\/)?$/;
 
 /** Collects `ferrule-allow(rule): reason` comments (comment nodes only, found by a cursor walk). */
@@ -198,6 +204,25 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     facts.lang = lang === "c" && useLang === "cpp" ? "cpp" : lang;
     if (pp) {
       facts.extra.preproc = { envKey: pp.envKey, reads: pp.reads };
+      if (pp.undecided.length) {
+        // uses of a macro whose definition ferrule cannot decide: the names they may define
+        const starts = lineStarts(text);
+        const pos = (o: number) => {
+          let lo = 0, hi = starts.length - 1;
+          while (lo < hi) { const mid = (lo + hi + 1) >> 1; if (starts[mid]! <= o) lo = mid; else hi = mid - 1; }
+          return { line: lo, col: o - starts[lo]! };
+        };
+        // `void bitfn(dav1d_init)(void) {…}`: the grammar reads the unexpanded macro as the
+        // function's name; that name is no symbol, the macro items say what it may define
+        // (unless a candidate reading keeps the name: `#define dav1d_log dav1d_log`)
+        const macroNames = new Set(pp.undecided.map((u) => u.macro));
+        for (const u of pp.undecided) if (u.keepsName) macroNames.delete(u.macro);
+        if (macroNames.size) facts.fns = facts.fns.filter((f) => !macroNames.has(f.name));
+        for (const u of pp.undecided) {
+          const a = pos(u.s), b = pos(u.e);
+          (facts.macroItems ??= []).push({ macro: u.macro, names: u.names, range: { file, line: a.line, col: a.col, endLine: b.line, endCol: b.col }, c: true });
+        }
+      }
       if (pp.ambiguous.length) {
         facts.notices.push({
           rule: "unknown-macro",

@@ -239,6 +239,9 @@ export interface MacroItem {
   names: string[];
   /** The whole invocation. */
   range: Range;
+  /** A C/C++ macro use ferrule left unexpanded (its definition depends on a condition it cannot
+   * decide); `names` are what each candidate definition would make. */
+  c?: boolean;
 }
 
 /** An expression at a call site, in a small language-neutral form. */

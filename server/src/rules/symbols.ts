@@ -200,8 +200,10 @@ export const symbolsFamily: RuleFamily = {
           if (outsideProto(model, p)) continue;
           if (macros.length) {
             const [m] = macros;
-            out.push(finding(MACRO_MAY_DEFINE, p.nameRange, `\`${p.name}\` has no definition ferrule can read; the macro invocation \`${m!.macro}!(…)\` names it and may define it, but ferrule expands no macro, so this declaration is not checked against a Rust signature`,
-              macros.map((x) => ({ range: x.range, message: `\`${x.macro}!\` invocation naming \`${p.name}\`` })), { data: { fn: p.id } }));
+            out.push(finding(MACRO_MAY_DEFINE, p.nameRange, m!.c
+              ? `\`${p.name}\` has no definition ferrule can read; the C macro use \`${m!.macro}(…)\` may define it, but its definition depends on a condition ferrule cannot decide (list the build's macros under \`defines\`), so this declaration is not checked`
+              : `\`${p.name}\` has no definition ferrule can read; the macro invocation \`${m!.macro}!(…)\` names it and may define it, but ferrule expands no macro, so this declaration is not checked against a Rust signature`,
+              macros.map((x) => ({ range: x.range, message: x.c ? `\`${x.macro}(…)\` use that may define \`${p.name}\`` : `\`${x.macro}!\` invocation naming \`${p.name}\`` })), { data: { fn: p.id } }));
             continue;
           }
           out.push(finding(NO_DEFINITION, p.nameRange, `\`${p.name}\` is declared here but neither a Rust export nor a C/C++ definition in the workspace provides it`, [], { data: { fn: p.id } }));

@@ -95,7 +95,7 @@ export class MacroTable {
       // defined only under a condition ferrule cannot decide: left as written unless every
       // candidate only spells attributes (then expanding it cannot change the declaration)
       const attr = e.defs.every((d) => !d.params === !first.params && this.attributeLike(d.body, 0));
-      if (!attr) return undefined;
+      if (!attr) return AMBIGUOUS;
     }
     if (e.defs.length === 1) return first;
     if (e.defs.every((d) => sameDef(d, first))) return first;

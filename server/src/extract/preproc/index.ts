@@ -46,7 +46,7 @@ export interface PreprocResult {
   text: string;
   changed: boolean;
   /** Column in the source of a column of the expanded text on `line` (lines are the same). */
-  mapCol: (line: number, col: number) => number;
+  mapCol: (line: number, col: number, end?: boolean) => number;
   /** Files read through #include (for cache keys). */
   reads: string[];
   /** A key of the macro environment that came from outside the file (included files' texts,
@@ -54,6 +54,8 @@ export interface PreprocResult {
   envKey: string;
   /** Names of macros ferrule could not expand because their definitions disagree. */
   ambiguous: string[];
+  /** Unexpanded uses of such macros: the identifiers each candidate definition would make. */
+  undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[];
   expansions: number;
 }
 
@@ -208,6 +210,8 @@ class Run {
   readonly readKeys: string[] = [];
   readonly included = new Set<string>();
   readonly ambiguous = new Set<string>();
+  /** Uses of a macro ferrule could not decide, with the names each candidate definition makes. */
+  readonly undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[] = [];
   expansions = 0;
   private depth = 0;
 
@@ -390,19 +394,80 @@ class Run {
     }
   }
 
+  /**
+   * A use ferrule leaves unexpanded because a macro's definition depends on an undecided
+   * condition (`bitfn(dav1d_cdef_dsp_init)` with `x##_8bpc` or `x##_16bpc` by BITDEPTH): the
+   * identifiers each candidate reading would make, so a declaration of one of them is "may be
+   * defined here", not "defined nowhere". At most 4 candidates per macro.
+   */
+  private noteUndecided(toks: Tok[], i: number, limit: number): void {
+    const first = toks[i]!;
+    const names = new Set<string>();
+    let keepsName = false;
+    let end = i;
+    const variants = (name: string): MacroTable[] => {
+      const e = this.table.map.get(name);
+      if (!e) return [];
+      return e.defs.slice(0, 4).map((d) => {
+        const t = this.table.clone();
+        t.map.set(name, { defs: [d], maybeUndef: false });
+        return t;
+      });
+    };
+    // the macro itself, or the first undecided macro its expansion meets
+    let tables = variants(first.t);
+    if (this.table.map.get(first.t)?.defs.length === 1 && !this.table.map.get(first.t)!.maybeUndef) {
+      let inner: string | undefined;
+      const probe = new Expander(this.table, { maxSteps: 5_000, onAmbiguous: (n) => { inner ??= n; return undefined; } });
+      let at = i;
+      try {
+        const out: Tok[] = [];
+        const r: Reader = { next: () => (at < limit ? toks[at++] : undefined), peek: () => (at < limit ? toks[at] : undefined) };
+        probe.step(r, out);
+        while (probe.hasPending()) probe.step(r, out);
+      } catch { return; }
+      if (!inner) return;
+      tables = variants(inner);
+    }
+    for (const t of tables) {
+      let at = i;
+      const r: Reader = { next: () => (at < limit ? toks[at++] : undefined), peek: () => (at < limit ? toks[at] : undefined) };
+      const ex = new Expander(t, { maxSteps: 5_000, onAmbiguous: () => undefined });
+      const out: Tok[] = [];
+      try {
+        ex.step(r, out);
+        while (ex.hasPending()) ex.step(r, out);
+      } catch { continue; }
+      end = Math.max(end, at - 1);
+      for (const o of out) {
+        if (o.k !== K.Ident) continue;
+        if (o.t === first.t) keepsName = true;
+        else names.add(o.t);
+      }
+    }
+    if (names.size && names.size <= 64) this.undecided.push({ macro: first.t, names: [...names], s: first.s, e: toks[end]!.e, keepsName });
+  }
+
   /** Expands the macro use starting at toks[i]; returns the index after what it consumed. */
   private expandAt(text: string, toks: Tok[], i: number, limit: number): number {
     const first = toks[i]!;
     const m = this.table.resolve(first.t);
     if (m === undefined) return i + 1;
-    if (m === AMBIGUOUS) { this.ambiguous.add(first.t); return i + 1; }
+    if (m === AMBIGUOUS) {
+      if ((this.table.map.get(first.t)?.defs.length ?? 0) > 1) this.ambiguous.add(first.t);
+      this.noteUndecided(toks, i, limit);
+      return i + 1;
+    }
     if (m.params && toks[i + 1]?.t !== "(") return i + 1;
     let at = i;
     const reader: Reader = {
       next: () => (at < limit ? toks[at++] : undefined),
       peek: () => (at < limit ? toks[at] : undefined),
     };
-    const ex = new Expander(this.table, { maxSteps: 50_000 });
+    // an expansion that runs into a macro ferrule cannot decide is not applied at all: half an
+    // expansion would read as code nobody wrote
+    let unsure: string | undefined;
+    const ex = new Expander(this.table, { maxSteps: 50_000, onAmbiguous: (name) => { unsure ??= name; return undefined; } });
     const out: Tok[] = [];
     try {
       ex.step(reader, out);
@@ -410,6 +475,11 @@ class Run {
     } catch (e) {
       if (e instanceof ExpansionLimit) return i + 1;
       throw e;
+    }
+    if (unsure !== undefined) {
+      if ((this.table.map.get(unsure)?.defs.length ?? 0) > 1) this.ambiguous.add(unsure);
+      this.noteUndecided(toks, i, limit);
+      return i + 1;
     }
     if (out.length === 1 && out[0] === first) return i + 1;
     const last = toks[at - 1]!;
@@ -452,7 +522,7 @@ export function preprocess(file: string, text: string, env: PreprocEnv): Preproc
   run.file(file, text, scan(text), true);
   const envKey = quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, run.readKeys]));
   const edits = run.edits.sort((a, b) => a.s - b.s);
-  const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], expansions: run.expansions };
+  const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], undecided: run.undecided, expansions: run.expansions };
   if (edits.length === 0) return { text, changed: false, mapCol: (_l, c) => c, ...base };
   const parts: string[] = [];
   const segs = new Map<number, Seg[]>();
@@ -484,14 +554,20 @@ export function preprocess(file: string, text: string, env: PreprocEnv): Preproc
   }
   parts.push(text.slice(pos));
   const out = parts.join("");
-  const mapCol = (l: number, c: number): number => {
+  const mapCol = (l: number, c: number, end = false): number => {
     const arr = segs.get(l);
     if (!arr) return c;
     let shift = 0;
     for (const s of arr) {
       if (c < s.outStart) return c - shift;
-      if (c === s.outStart) return s.srcStart;
-      if (c <= s.outEnd) return s.srcEnd;
+      // a start inside an expansion is the macro use's start; an end inside it, the use's end
+      if (!end) {
+        if (c < s.outEnd) return s.srcStart;
+        if (c === s.outEnd) return s.srcEnd;
+      } else {
+        if (c === s.outStart) return s.srcStart;
+        if (c <= s.outEnd) return s.srcEnd;
+      }
       shift = s.outEnd - s.srcEnd;
     }
     return c - shift;
