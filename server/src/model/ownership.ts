@@ -15,6 +15,8 @@ export interface RustArg {
   cast?: string;
   /** Where that pointee type is written (for fixes that correct it). */
   castRange?: Range;
+  /** Reached through one dereference: `*out` of an out-parameter `out: *mut *mut T`. */
+  deref?: boolean;
   text: string;
 }
 

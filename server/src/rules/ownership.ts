@@ -267,7 +267,7 @@ class CrateIndex {
   }
 }
 
-interface RelRaw { param: number; how: OwnHow; inner?: string; nullChecked: boolean; byParam: boolean; site: Range; calleeRange?: Range; chain: string[] }
+interface RelRaw { deref?: boolean; param: number; how: OwnHow; inner?: string; nullChecked: boolean; byParam: boolean; site: Range; calleeRange?: Range; chain: string[] }
 
 function paramIndex(fn: FnDecl, a: RustArg): number {
   return a.ident ? fn.params.findIndex((p) => p.name === a.ident) : -1;
@@ -284,8 +284,11 @@ function releasesOf(fn: FnDecl, idx: CrateIndex, depth = 0, seen = new Set<strin
     if (pi < 0) continue;
     if (r.binding && o.reLeaks.some((l) => l.ident === r.binding && before(r.range, l.range))) continue;
     const p = fn.params[pi]!;
+    // `*out` of `out: *mut *mut T`: the handle is the pointer `out` points to
+    if (r.arg.deref && !(p.type.k === "ptr" && p.type.to.k === "ptr")) continue;
+    const pt = r.arg.deref && p.type.k === "ptr" ? p.type.to : p.type;
     out.push({
-      param: pi, how: r.how, inner: r.inner ?? r.arg.cast ?? pointeeName(p.type), byParam: !!r.byParam,
+      deref: r.arg.deref, param: pi, how: r.how, inner: r.inner ?? r.arg.cast ?? pointeeName(pt), byParam: !!r.byParam,
       nullChecked: r.byParam ? !!r.nullableParam : checkedBefore(r.arg.ident!, r.range),
       site: r.range, calleeRange: r.calleeRange, chain: [],
     });
@@ -350,7 +353,8 @@ export function ownershipModel(model: Model): OwnershipModel {
     }
     if (rels.length) {
       releasers.set(fn.symbol, rels.map((r) => {
-        const pt = fn.params[r.param]!.type;
+        const pt0 = fn.params[r.param]!.type;
+        const pt = r.deref && pt0.k === "ptr" ? pt0.to : pt0;
         const key = pointeeKey(pt, model) ?? (r.how === "cstring" ? "t:char" : r.inner ? `t:${normName(r.inner)}` : `v:${stemOf(fn.symbol, REL_SUFFIX) ?? fn.symbol}`);
         return { fn, ...r, key, stem: stemOf(fn.symbol, REL_SUFFIX) };
       }));

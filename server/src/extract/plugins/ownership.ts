@@ -159,6 +159,11 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     if (u) p.under = u;
     own.panics.push(p);
   };
+  // `-> Box<T>` / `-> Option<Box<T>>` from an extern "C" function: C receives the Box as a
+  // pointer it owns (the Rust Reference: Box<T> and Option<Box<T>> have a pointer's ABI)
+  if (fn.ret.k === "ptr" && fn.ret.via === "box" && fn.abi !== "Rust") {
+    own.produces.push({ how: "box", inner: fn.ret.to.k === "named" ? fn.ret.to.name : undefined, range: fn.retRange ?? fn.nameRange, protected: false });
+  }
   const intNames = new Set<string>();
   for (const p of fn.params) {
     if (p.type.k === "scalar" && !["f32", "f64", "float", "double", "bool"].includes(p.type.s)) intNames.add(p.name);
@@ -185,6 +190,12 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       }
       case "parenthesized_expression":
         return argRef(n.namedChild(0), depth + 1);
+      case "unary_expression": {
+        // `*out` with `out: *mut *mut T` (a release through an out-parameter that it then clears)
+        const inner = n.child(0)?.text === "*" ? n.namedChild(0) : undefined;
+        if (inner?.type !== "identifier" || aliases.has(inner.text)) return { text: n.text };
+        return { ident: inner.text, deref: true, text: n.text };
+      }
       case "unsafe_block":
       case "block": {
         const last = n.namedChildren.filter((c) => !c.type.endsWith("comment")).pop();
@@ -477,6 +488,9 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         return;
       }
       if (head === "ManuallyDrop" && name === "new") {
+        // a field of a struct being built (`Image { inner: ManuallyDrop::new(x) }`) is how that
+        // struct manages its field's drop, not a value handed to C
+        if (n.parent?.type === "field_initializer") return;
         own.produces.push({ how: "manuallydrop", range, protected: prot });
         const r = argRef(a0);
         if (r.ident) own.reLeaks.push({ ident: r.ident, range });
