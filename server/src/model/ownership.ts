@@ -61,6 +61,8 @@ export interface RustPanic {
   /** A warning only on call paths where one of these parameters (bit i = parameter i, `self` not
    * counted) carries a value C handed over; info on the others. Absent: `level` as it is. */
   taint?: number;
+  /** assert!: lower bounds on parameters that make its condition hold (`rate > 0` → rate >= 1). */
+  needs?: { param: number; ge: number }[];
   under?: RustUnder[];
 }
 
@@ -77,6 +79,8 @@ export interface RustCall {
   head?: string;
   /** Per argument (the receiver not counted): the caller's parameters it reads (bitmask). */
   argTaint?: number[];
+  /** Per argument: the lower bound the caller's guards give it at the call (null: none known). */
+  argGe?: (number | null)[];
   under?: RustUnder[];
 }
 

@@ -595,8 +595,11 @@ function checkPanics(model: Model, out: Finding[]): void {
     }
     return false;
   };
-  const live = (fn: FnDecl, o: RustOwnFacts, active: number): Site[] =>
-    o.panics.filter((p) => !p.protected && !caught(fn, p)).map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
+  const live = (fn: FnDecl, o: RustOwnFacts, active: number, given?: (number | null)[]): Site[] =>
+    o.panics.filter((p) => !p.protected && !caught(fn, p) &&
+      // an assert whose bounds on the parameters the caller's guards already give
+      !(p.needs && given && p.needs.every((nd) => (given[nd.param] ?? -Infinity) >= nd.ge)))
+      .map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
   /** The callee's parameters that carry C's values: those whose argument reads an active one. */
   const passOn = (c: RustCall, active: number): number => {
     let m = 0;
@@ -605,13 +608,13 @@ function checkPanics(model: Model, out: Finding[]): void {
   };
   type Hit = { chain: FnDecl[]; site: Site };
   const memo = new Map<string, Hit | null>();
-  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>, active: number): Hit | undefined => {
+  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>, active: number, given?: (number | null)[]): Hit | undefined => {
     const o = own(fn);
     if (!o || depth > 6 || seen.has(fn.id)) return undefined;
-    const mk = `${fn.id}|${active}`;
+    const mk = `${fn.id}|${active}|${given?.join(",") ?? ""}`;
     if (memo.has(mk)) return memo.get(mk) ?? undefined;
     seen.add(fn.id);
-    const sites = live(fn, o, active);
+    const sites = live(fn, o, active, given);
     let best: Hit | undefined;
     const w = sites.find((p) => levelOf(p) === "warning");
     if (w) best = { chain: [fn], site: w };
@@ -621,7 +624,7 @@ function checkPanics(model: Model, out: Finding[]): void {
         if (c.protected || caught(fn, c)) continue;
         const h = idx.resolve(fn, c);
         if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-        const r = helperPanics(h, depth + 1, seen, passOn(c, active));
+        const r = helperPanics(h, depth + 1, seen, passOn(c, active), c.argGe);
         if (r && (!best || (levelOf(r.site) === "warning" && levelOf(best.site) !== "warning"))) best = { chain: [fn, ...r.chain], site: r.site };
         if (best && levelOf(best.site) === "warning") break;
       }
@@ -642,7 +645,7 @@ function checkPanics(model: Model, out: Finding[]): void {
       if (c.protected || caught(fn, c)) continue;
       const h = idx.resolve(fn, c);
       if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-      const r = helperPanics(h, 1, new Set([fn.id]), passOn(c, all));
+      const r = helperPanics(h, 1, new Set([fn.id]), passOn(c, all), c.argGe);
       if (r) viaHelpers.push({ call: c.range, chain: r.chain, site: r.site });
     }
     if (!direct.length && !viaHelpers.length) continue;

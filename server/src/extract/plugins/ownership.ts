@@ -344,7 +344,11 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         const kind = PANIC_MACROS[mac];
         if (kind === "assert") {
           const d = sense.assertDeps(n, mac);
-          if (d !== "const") site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
+          if (d !== "const") {
+            site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
+            const needs = mac === "assert" ? sense.assertNeeds(n, paramNames) : undefined;
+            if (needs) own.panics[own.panics.length - 1]!.needs = needs;
+          }
         } else if (kind && !sense.armUnreachable(n)) site(kind, `${mac}!`, n, "warning", sense.branchTaint(n));
         return false; // token trees are not parsed
       }
@@ -395,6 +399,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     sense.onCall(n, range);
     const under = sense.underOf(n);
     const argTaint = args.map((a) => (sense.isConstExpr(a) ? 0 : sense.taintOf(a)));
+    const argGe = sense.argLowerBounds(n, args);
     let fe = f;
     if (f.type === "generic_function") fe = f.childForFieldName("function") ?? f;
     if (fe.type === "field_expression") {
@@ -437,6 +442,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       const rt = sense.recvType(recv);
       if (rt) call.recv = rt;
       if (argTaint.some((t) => t)) call.argTaint = argTaint;
+      if (argGe) call.argGe = argGe;
       if (under) call.under = under;
       own.calls.push(call);
       return;
@@ -566,6 +572,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         if (h) call.head = h;
       }
       if (argTaint.some((t) => t)) call.argTaint = argTaint;
+      if (argGe) call.argGe = argGe;
       if (under) call.under = under;
       own.calls.push(call);
     }
