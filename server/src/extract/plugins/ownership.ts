@@ -129,6 +129,18 @@ function constsOf(n: Node): Map<string, number> {
   return m;
 }
 
+/** The type a `Box<T>` / `Option<Box<T>>` type node holds, by its name without generic
+ * arguments (`Option<Box<Image<'a>>>` → "Image"): the model keeps a generic instance only as text. */
+function boxedName(t: Node | null | undefined, depth = 0): string | undefined {
+  if (!t || depth > 4 || t.type !== "generic_type") return undefined;
+  const head = lastSeg(t.childForFieldName("type")?.text ?? "");
+  const arg = t.childForFieldName("type_arguments")?.namedChildren.find((c) => !c.type.endsWith("comment") && c.type !== "lifetime");
+  if (head === "Option") return boxedName(arg, depth + 1);
+  if (head !== "Box" || !arg) return undefined;
+  if (arg.type === "generic_type") return lastSeg(arg.childForFieldName("type")?.text ?? "");
+  return arg.type === "type_identifier" || arg.type === "scoped_type_identifier" ? lastSeg(arg.text) : undefined;
+}
+
 function pointeeName(typeText: string | undefined): string | undefined {
   if (!typeText) return undefined;
   // `*mut Det`, `*const Det`, `Det` — the type's own text, taken from the tree by the caller.
@@ -162,14 +174,15 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
   // `-> Box<T>` / `-> Option<Box<T>>` from an extern "C" function: C receives the Box as a
   // pointer it owns (the Rust Reference: Box<T> and Option<Box<T>> have a pointer's ABI)
   if (fn.ret.k === "ptr" && fn.ret.via === "box" && fn.abi !== "Rust") {
-    own.produces.push({ how: "box", inner: fn.ret.to.k === "named" ? fn.ret.to.name : undefined, range: fn.retRange ?? fn.nameRange, protected: false });
+    own.produces.push({ how: "box", inner: fn.ret.to.k === "named" ? fn.ret.to.name : boxedName(fnNode.childForFieldName("return_type")), range: fn.retRange ?? fn.nameRange, protected: false });
   }
   const intNames = new Set<string>();
+  const paramTypeNodes = (fnNode.childForFieldName("parameters")?.namedChildren ?? []).filter((c) => c.type === "parameter").map((c) => c.childForFieldName("type"));
   for (const p of fn.params) {
     if (p.type.k === "scalar" && !["f32", "f64", "float", "double", "bool"].includes(p.type.s)) intNames.add(p.name);
     // A Box<T> parameter owns its pointee: it is released when the function returns.
     if (p.type.k === "ptr" && p.type.via === "box") {
-      const inner = p.type.to.k === "named" ? p.type.to.name : undefined;
+      const inner = p.type.to.k === "named" ? p.type.to.name : boxedName(paramTypeNodes[fn.params.indexOf(p)]);
       own.releases.push({ how: "box", arg: { ident: p.name, text: p.name }, inner, range: p.range, byParam: true, nullableParam: !!p.type.nullable });
     }
   }

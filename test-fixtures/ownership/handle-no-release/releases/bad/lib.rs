@@ -29,3 +29,16 @@ pub unsafe extern "C" fn seis_station_close(st: *mut *mut Station) {
     }
     *st = std::ptr::null_mut();
 }
+
+pub struct Trace<'a> {
+    samples: &'a [f32],
+}
+
+/// Nothing takes a trace back.
+#[no_mangle]
+pub unsafe extern "C" fn seis_trace_new(samples: *const f32, n: usize) -> Option<Box<Trace<'static>>> {
+    if samples.is_null() {
+        return None;
+    }
+    Some(Box::new(Trace { samples: std::slice::from_raw_parts(samples, n) }))
+}

@@ -41,3 +41,19 @@ pub unsafe extern "C" fn seis_station_close(st: *mut *mut Station) {
     drop(Box::from_raw(*st));
     *st = std::ptr::null_mut();
 }
+
+/// A trace view with a lifetime: the handle type is a generic instance (`Trace<'static>`).
+pub struct Trace<'a> {
+    samples: &'a [f32],
+}
+
+#[no_mangle]
+pub unsafe extern "C" fn seis_trace_new(samples: *const f32, n: usize) -> Option<Box<Trace<'static>>> {
+    if samples.is_null() {
+        return None;
+    }
+    Some(Box::new(Trace { samples: std::slice::from_raw_parts(samples, n) }))
+}
+
+#[no_mangle]
+pub extern "C" fn seis_trace_free(_: Option<Box<Trace>>) {}
