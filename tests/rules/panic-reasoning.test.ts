@@ -28,13 +28,14 @@ const lines = (fs_: Finding[]) => fs_.map((f) => `${f.range.line + 1} ${f.severi
 const show = (fs_: Finding[]) => fs_.map((f) => `${f.range.line + 1} ${f.severity} ${f.message}`).join("\n");
 
 describe("panic-across-c-abi: values", () => {
-  it("bad: C string unwrap and unreachable! on C's mode warn; an unguarded index and overflows are info", async () => {
+  it("bad: C string unwrap, unreachable! on C's mode and a helper's assert C's value reaches warn; an unguarded index and overflows are info", async () => {
     const f = await run("values/bad");
-    expect(lines(f), show(f)).toEqual(["11 warning", "20 warning", "27 info", "33 info", "39 info"]);
+    expect(lines(f), show(f)).toEqual(["11 warning", "20 warning", "27 info", "33 info", "39 info", "51 warning"]);
+    expect(f.find((x) => x.range.line + 1 === 51)!.message).toContain("`hyd_frame_count` → `frame_count`");
     expect(f.find((x) => x.range.line + 1 === 33)!.message).toMatch(/overflow checks are on/);
   });
 
-  it("good: early returns, loop bounds, masked and %-bounded indices, a % ring, saturating/checked arithmetic, widening, debug_assert!, constant asserts, an exhaustive masked match, a guarded unwrap and a fixed-length try_into give nothing", async () => {
+  it("good: early returns, loop bounds, masked and %-bounded indices, a % ring, saturating/checked arithmetic, widening, debug_assert!, constant asserts, an exhaustive masked match, a guarded unwrap, a fixed-length try_into and a helper's assert the caller's guard satisfies give nothing", async () => {
     const f = await run("values/good");
     expect(f, show(f)).toEqual([]);
   });
@@ -65,7 +66,7 @@ describe.skipIf(!have("rustc"))("rustc agrees on the edge inputs", () => {
     return { tmp, exe, run: (i: number) => spawnSync(exe, [String(i)], { encoding: "utf8" }) };
   };
 
-  it("the bad kernels abort on n = 0, a mode of 7, an index of 8, a non-UTF-8 label", () => {
+  it("the bad kernels abort on n = 0, a mode of 7, an index of 8, a hop of 0, a non-UTF-8 label", () => {
     const k = build("values/bad", `    let bytes = [0xffu8, 0];
     unsafe {
         match which {
@@ -73,12 +74,13 @@ describe.skipIf(!have("rustc"))("rustc agrees on the edge inputs", () => {
             1 => { hyd_pair_index(1); }
             2 => { hyd_mode_gain(7); }
             3 => { hyd_tap(8); }
+            4 => { hyd_frame_count(10, 0); }
             _ => { hyd_label_len(bytes.as_ptr() as *const core::ffi::c_char); }
         }
     }`);
     try {
-      const why = [/subtract with overflow/, /subtract with overflow/, /unreachable/, /index out of bounds/, /Utf8Error/];
-      for (let i = 0; i < 5; i++) {
+      const why = [/subtract with overflow/, /subtract with overflow/, /unreachable/, /index out of bounds/, /hop > 0/, /Utf8Error/];
+      for (let i = 0; i < 6; i++) {
         const r = k.run(i);
         expect(r.status, `case ${i}`).not.toBe(0);
         expect(r.stderr).toMatch(why[i]!);
@@ -98,7 +100,7 @@ describe.skipIf(!have("rustc"))("rustc agrees on the edge inputs", () => {
             0 => hyd_swing(one.as_ptr(), 1) + hyd_swing(one.as_ptr(), 0) + hyd_energy(one.as_ptr(), 1),
             1 => hyd_tap(usize::MAX, true) + hyd_tap(usize::MAX, false),
             2 => hyd_ring_peak(ring.as_ptr(), 3, usize::MAX, 10) + hyd_ring_peak(ring.as_ptr(), 0, 5, 5),
-            3 => hyd_frames(0, 1, u32::MAX) as f32 + hyd_gain(u32::MAX),
+            3 => hyd_frames(0, 1, u32::MAX) as f32 + hyd_gain(u32::MAX) + hyd_frame_count(10, 0) as f32,
             _ => (hyd_label_len(bytes.as_ptr() as *const core::ffi::c_char) + hyd_label_len(std::ptr::null())) as f32 + hyd_serial(header.as_ptr()) as f32,
         };
         println!("{v}");

@@ -15,6 +15,8 @@ export interface RustArg {
   cast?: string;
   /** Where that pointee type is written (for fixes that correct it). */
   castRange?: Range;
+  /** Reached through one dereference: `*out` of an out-parameter `out: *mut *mut T`. */
+  deref?: boolean;
   text: string;
 }
 
@@ -59,6 +61,8 @@ export interface RustPanic {
   /** A warning only on call paths where one of these parameters (bit i = parameter i, `self` not
    * counted) carries a value C handed over; info on the others. Absent: `level` as it is. */
   taint?: number;
+  /** assert!: lower bounds on parameters that make its condition hold (`rate > 0` → rate >= 1). */
+  needs?: { param: number; ge: number }[];
   under?: RustUnder[];
 }
 
@@ -75,6 +79,8 @@ export interface RustCall {
   head?: string;
   /** Per argument (the receiver not counted): the caller's parameters it reads (bitmask). */
   argTaint?: number[];
+  /** Per argument: the lower bound the caller's guards give it at the call (null: none known). */
+  argGe?: (number | null)[];
   under?: RustUnder[];
 }
 

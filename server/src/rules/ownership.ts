@@ -267,7 +267,7 @@ class CrateIndex {
   }
 }
 
-interface RelRaw { param: number; how: OwnHow; inner?: string; nullChecked: boolean; byParam: boolean; site: Range; calleeRange?: Range; chain: string[] }
+interface RelRaw { deref?: boolean; param: number; how: OwnHow; inner?: string; nullChecked: boolean; byParam: boolean; site: Range; calleeRange?: Range; chain: string[] }
 
 function paramIndex(fn: FnDecl, a: RustArg): number {
   return a.ident ? fn.params.findIndex((p) => p.name === a.ident) : -1;
@@ -284,8 +284,11 @@ function releasesOf(fn: FnDecl, idx: CrateIndex, depth = 0, seen = new Set<strin
     if (pi < 0) continue;
     if (r.binding && o.reLeaks.some((l) => l.ident === r.binding && before(r.range, l.range))) continue;
     const p = fn.params[pi]!;
+    // `*out` of `out: *mut *mut T`: the handle is the pointer `out` points to
+    if (r.arg.deref && !(p.type.k === "ptr" && p.type.to.k === "ptr")) continue;
+    const pt = r.arg.deref && p.type.k === "ptr" ? p.type.to : p.type;
     out.push({
-      param: pi, how: r.how, inner: r.inner ?? r.arg.cast ?? pointeeName(p.type), byParam: !!r.byParam,
+      deref: r.arg.deref, param: pi, how: r.how, inner: r.inner ?? r.arg.cast ?? pointeeName(pt), byParam: !!r.byParam,
       nullChecked: r.byParam ? !!r.nullableParam : checkedBefore(r.arg.ident!, r.range),
       site: r.range, calleeRange: r.calleeRange, chain: [],
     });
@@ -350,7 +353,8 @@ export function ownershipModel(model: Model): OwnershipModel {
     }
     if (rels.length) {
       releasers.set(fn.symbol, rels.map((r) => {
-        const pt = fn.params[r.param]!.type;
+        const pt0 = fn.params[r.param]!.type;
+        const pt = r.deref && pt0.k === "ptr" ? pt0.to : pt0;
         const key = pointeeKey(pt, model) ?? (r.how === "cstring" ? "t:char" : r.inner ? `t:${normName(r.inner)}` : `v:${stemOf(fn.symbol, REL_SUFFIX) ?? fn.symbol}`);
         return { fn, ...r, key, stem: stemOf(fn.symbol, REL_SUFFIX) };
       }));
@@ -591,8 +595,11 @@ function checkPanics(model: Model, out: Finding[]): void {
     }
     return false;
   };
-  const live = (fn: FnDecl, o: RustOwnFacts, active: number): Site[] =>
-    o.panics.filter((p) => !p.protected && !caught(fn, p)).map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
+  const live = (fn: FnDecl, o: RustOwnFacts, active: number, given?: (number | null)[]): Site[] =>
+    o.panics.filter((p) => !p.protected && !caught(fn, p) &&
+      // an assert whose bounds on the parameters the caller's guards already give
+      !(p.needs && given && p.needs.every((nd) => (given[nd.param] ?? -Infinity) >= nd.ge)))
+      .map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
   /** The callee's parameters that carry C's values: those whose argument reads an active one. */
   const passOn = (c: RustCall, active: number): number => {
     let m = 0;
@@ -601,13 +608,13 @@ function checkPanics(model: Model, out: Finding[]): void {
   };
   type Hit = { chain: FnDecl[]; site: Site };
   const memo = new Map<string, Hit | null>();
-  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>, active: number): Hit | undefined => {
+  const helperPanics = (fn: FnDecl, depth: number, seen: Set<string>, active: number, given?: (number | null)[]): Hit | undefined => {
     const o = own(fn);
     if (!o || depth > 6 || seen.has(fn.id)) return undefined;
-    const mk = `${fn.id}|${active}`;
+    const mk = `${fn.id}|${active}|${given?.join(",") ?? ""}`;
     if (memo.has(mk)) return memo.get(mk) ?? undefined;
     seen.add(fn.id);
-    const sites = live(fn, o, active);
+    const sites = live(fn, o, active, given);
     let best: Hit | undefined;
     const w = sites.find((p) => levelOf(p) === "warning");
     if (w) best = { chain: [fn], site: w };
@@ -617,7 +624,7 @@ function checkPanics(model: Model, out: Finding[]): void {
         if (c.protected || caught(fn, c)) continue;
         const h = idx.resolve(fn, c);
         if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-        const r = helperPanics(h, depth + 1, seen, passOn(c, active));
+        const r = helperPanics(h, depth + 1, seen, passOn(c, active), c.argGe);
         if (r && (!best || (levelOf(r.site) === "warning" && levelOf(best.site) !== "warning"))) best = { chain: [fn, ...r.chain], site: r.site };
         if (best && levelOf(best.site) === "warning") break;
       }
@@ -638,7 +645,7 @@ function checkPanics(model: Model, out: Finding[]): void {
       if (c.protected || caught(fn, c)) continue;
       const h = idx.resolve(fn, c);
       if (!h || h === fn || (h.isExtern && h.abi !== "Rust")) continue;
-      const r = helperPanics(h, 1, new Set([fn.id]), passOn(c, all));
+      const r = helperPanics(h, 1, new Set([fn.id]), passOn(c, all), c.argGe);
       if (r) viaHelpers.push({ call: c.range, chain: r.chain, site: r.site });
     }
     if (!direct.length && !viaHelpers.length) continue;

@@ -129,6 +129,18 @@ function constsOf(n: Node): Map<string, number> {
   return m;
 }
 
+/** The type a `Box<T>` / `Option<Box<T>>` type node holds, by its name without generic
+ * arguments (`Option<Box<Image<'a>>>` → "Image"): the model keeps a generic instance only as text. */
+function boxedName(t: Node | null | undefined, depth = 0): string | undefined {
+  if (!t || depth > 4 || t.type !== "generic_type") return undefined;
+  const head = lastSeg(t.childForFieldName("type")?.text ?? "");
+  const arg = t.childForFieldName("type_arguments")?.namedChildren.find((c) => !c.type.endsWith("comment") && c.type !== "lifetime");
+  if (head === "Option") return boxedName(arg, depth + 1);
+  if (head !== "Box" || !arg) return undefined;
+  if (arg.type === "generic_type") return lastSeg(arg.childForFieldName("type")?.text ?? "");
+  return arg.type === "type_identifier" || arg.type === "scoped_type_identifier" ? lastSeg(arg.text) : undefined;
+}
+
 function pointeeName(typeText: string | undefined): string | undefined {
   if (!typeText) return undefined;
   // `*mut Det`, `*const Det`, `Det` — the type's own text, taken from the tree by the caller.
@@ -159,12 +171,18 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     if (u) p.under = u;
     own.panics.push(p);
   };
+  // `-> Box<T>` / `-> Option<Box<T>>` from an extern "C" function: C receives the Box as a
+  // pointer it owns (the Rust Reference: Box<T> and Option<Box<T>> have a pointer's ABI)
+  if (fn.ret.k === "ptr" && fn.ret.via === "box" && fn.abi !== "Rust") {
+    own.produces.push({ how: "box", inner: fn.ret.to.k === "named" ? fn.ret.to.name : boxedName(fnNode.childForFieldName("return_type")), range: fn.retRange ?? fn.nameRange, protected: false });
+  }
   const intNames = new Set<string>();
+  const paramTypeNodes = (fnNode.childForFieldName("parameters")?.namedChildren ?? []).filter((c) => c.type === "parameter").map((c) => c.childForFieldName("type"));
   for (const p of fn.params) {
     if (p.type.k === "scalar" && !["f32", "f64", "float", "double", "bool"].includes(p.type.s)) intNames.add(p.name);
     // A Box<T> parameter owns its pointee: it is released when the function returns.
     if (p.type.k === "ptr" && p.type.via === "box") {
-      const inner = p.type.to.k === "named" ? p.type.to.name : undefined;
+      const inner = p.type.to.k === "named" ? p.type.to.name : boxedName(paramTypeNodes[fn.params.indexOf(p)]);
       own.releases.push({ how: "box", arg: { ident: p.name, text: p.name }, inner, range: p.range, byParam: true, nullableParam: !!p.type.nullable });
     }
   }
@@ -185,6 +203,12 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       }
       case "parenthesized_expression":
         return argRef(n.namedChild(0), depth + 1);
+      case "unary_expression": {
+        // `*out` with `out: *mut *mut T` (a release through an out-parameter that it then clears)
+        const inner = n.child(0)?.text === "*" ? n.namedChild(0) : undefined;
+        if (inner?.type !== "identifier" || aliases.has(inner.text)) return { text: n.text };
+        return { ident: inner.text, deref: true, text: n.text };
+      }
       case "unsafe_block":
       case "block": {
         const last = n.namedChildren.filter((c) => !c.type.endsWith("comment")).pop();
@@ -333,7 +357,11 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         const kind = PANIC_MACROS[mac];
         if (kind === "assert") {
           const d = sense.assertDeps(n, mac);
-          if (d !== "const") site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
+          if (d !== "const") {
+            site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
+            const needs = mac === "assert" ? sense.assertNeeds(n, paramNames) : undefined;
+            if (needs) own.panics[own.panics.length - 1]!.needs = needs;
+          }
         } else if (kind && !sense.armUnreachable(n)) site(kind, `${mac}!`, n, "warning", sense.branchTaint(n));
         return false; // token trees are not parsed
       }
@@ -384,6 +412,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     sense.onCall(n, range);
     const under = sense.underOf(n);
     const argTaint = args.map((a) => (sense.isConstExpr(a) ? 0 : sense.taintOf(a)));
+    const argGe = sense.argLowerBounds(n, args);
     let fe = f;
     if (f.type === "generic_function") fe = f.childForFieldName("function") ?? f;
     if (fe.type === "field_expression") {
@@ -426,6 +455,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
       const rt = sense.recvType(recv);
       if (rt) call.recv = rt;
       if (argTaint.some((t) => t)) call.argTaint = argTaint;
+      if (argGe) call.argGe = argGe;
       if (under) call.under = under;
       own.calls.push(call);
       return;
@@ -477,6 +507,9 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         return;
       }
       if (head === "ManuallyDrop" && name === "new") {
+        // a field of a struct being built (`Image { inner: ManuallyDrop::new(x) }`) is how that
+        // struct manages its field's drop, not a value handed to C
+        if (n.parent?.type === "field_initializer") return;
         own.produces.push({ how: "manuallydrop", range, protected: prot });
         const r = argRef(a0);
         if (r.ident) own.reLeaks.push({ ident: r.ident, range });
@@ -552,6 +585,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         if (h) call.head = h;
       }
       if (argTaint.some((t) => t)) call.argTaint = argTaint;
+      if (argGe) call.argGe = argGe;
       if (under) call.under = under;
       own.calls.push(call);
     }

@@ -19,6 +19,7 @@
 // logical binary operators", "Overflow"; "Array and slice indexing expressions").
 
 import type { Node } from "../../parse/parser.js";
+import { parseText } from "../../parse/parser.js";
 
 /** `a` is an expression's text without spaces; `r` the local it starts from (an assignment to it
  * between the fact's place and a site drops the fact). */
@@ -100,6 +101,15 @@ export function condFacts(c: Node | null | undefined, positive: boolean, depth =
       if (!positive && (m === "is_none" || m === "is_err" || m === "is_null")) return withRoot([{ k: "some", a: recv }], r);
       if (positive && (m === "is_some" || m === "is_ok")) return withRoot([{ k: "some", a: recv }], r);
       if (!positive && m === "is_empty") return withRoot([{ k: "ge", a: `${recv}.len()`, v: 1 }], r);
+      // `(lo..=hi).contains(&x)` / `(lo..hi).contains(&x)`
+      const range = unparen(f.childForFieldName("value"));
+      const arg = u.childForFieldName("arguments")?.namedChildren.find((c) => !c.type.endsWith("comment"));
+      if (positive && m === "contains" && range?.type === "range_expression" && arg) {
+        const x = arg.type === "reference_expression" ? arg.childForFieldName("value") : arg;
+        const kids = range.namedChildren;
+        const lo = kids.length === 2 ? intLit(kids[0]) : undefined;
+        if (x && lo !== undefined) return withRoot([{ k: "ge", a: norm(uncast(x)), v: lo }], rootName(x));
+      }
     }
     return [];
   }
@@ -845,6 +855,62 @@ export class PanicSense {
     let mask = 0;
     for (const nm of names) mask |= this.taint.get(nm.replace(/\(\)$/, ""), at) ?? 0;
     return mask;
+  }
+
+  /** assert!(cond): the lower bounds on parameters the condition needs (`rate > 0` → rate >= 1),
+   * when that is all it says; a caller whose guards give those bounds cannot make it fail. The
+   * condition's tokens are parsed as a Rust expression by the grammar. */
+  assertNeeds(n: Node, params: string[]): { param: number; ge: number }[] | undefined {
+    const tt = n.namedChildren.find((c) => c.type === "token_tree");
+    if (!tt) return undefined;
+    const toks = tt.children.slice(1, -1);
+    const comma = toks.findIndex((t) => t.text === ",");
+    const cond = (comma < 0 ? toks : toks.slice(0, comma)).map((t) => t.text).join(" ");
+    if (!cond || cond.length > 200) return undefined;
+    let tree: ReturnType<typeof parseText> | undefined;
+    try {
+      tree = parseText("rust", `fn f() { let _ = ${cond}; }`);
+      const let_ = tree.rootNode.descendantsOfType("let_declaration")[0];
+      const v = let_?.childForFieldName("value");
+      if (!v || tree.rootNode.hasError) return undefined;
+      // every conjunct must turn into a bound on a parameter
+      const conj: Node[] = [];
+      const split = (x: Node | null | undefined, d: number): boolean => {
+        const u = unparen(x);
+        if (!u || d > 8) return false;
+        if (u.type === "binary_expression" && opOf(u) === "&&") return split(u.childForFieldName("left"), d + 1) && split(u.childForFieldName("right"), d + 1);
+        conj.push(u);
+        return true;
+      };
+      if (!split(v, 0)) return undefined;
+      const out: { param: number; ge: number }[] = [];
+      for (const c of conj) {
+        const fs = condFacts(c, true).filter((f) => f.k === "ge");
+        const f = fs.find((x) => x.k === "ge" && params.includes(x.a));
+        if (!f || f.k !== "ge") return undefined;
+        out.push({ param: params.indexOf(f.a), ge: f.v });
+      }
+      return out.length ? out : undefined;
+    } catch {
+      return undefined;
+    } finally {
+      tree?.delete();
+    }
+  }
+
+  /** Per argument of a call: the lower bound the guards at the call give it, if any. */
+  argLowerBounds(call: Node, args: Node[]): (number | null)[] | undefined {
+    const facts = this.vf.at(call);
+    let any = false;
+    const out = args.map((a) => {
+      const t = norm(uncast(a));
+      const lit = intLit(a);
+      let best: number | null = lit !== undefined ? lit : null;
+      for (const f of facts) if (f.k === "ge" && f.a === t && (best === null || f.v > best)) best = f.v;
+      if (best !== null) any = true;
+      return best;
+    });
+    return any ? out : undefined;
   }
 
   /** assert!/assert_eq!/assert_ne!: undefined when its condition reads constants only (or a

@@ -38,3 +38,15 @@ pub extern "C" fn hyd_last_index(n: usize) -> usize {
 pub extern "C" fn hyd_pair_index(n: usize) -> usize {
     if n > 0 { n - 2 } else { 0 }
 }
+
+/// Frames of `hop` samples; the helper states its contract with an assert.
+fn frame_count(total: usize, hop: usize) -> usize {
+    assert!(hop > 0);
+    total.checked_div(hop).unwrap_or(0)
+}
+
+/// A hop of 0 from C reaches the helper's assert.
+#[no_mangle]
+pub extern "C" fn hyd_frame_count(total: usize, hop: usize) -> usize {
+    frame_count(total, hop)
+}

@@ -99,3 +99,18 @@ pub unsafe extern "C" fn hyd_serial(header: *const u8) -> u32 {
     let (head, _) = bytes.split_at(4);
     u32::from_le_bytes(head.try_into().unwrap())
 }
+
+/// Frames of `hop` samples; the helper states its contract with an assert.
+fn frame_count(total: usize, hop: usize) -> usize {
+    assert!(hop > 0);
+    total.checked_div(hop).unwrap_or(0)
+}
+
+/// The caller refuses a hop of 0 before the helper's assert.
+#[no_mangle]
+pub extern "C" fn hyd_frame_count(total: usize, hop: usize) -> usize {
+    if hop == 0 {
+        return 0;
+    }
+    frame_count(total, hop)
+}
