@@ -1,7 +1,7 @@
 // Fuzzing the extract layer: every fixture file, mutated (truncated at every N bytes, bytes
 // flipped, NUL bytes and invalid UTF-8 inserted, CRLF/CR line ends, a BOM), plus 10,000-deep
 // nesting and very long single lines. extractFile must return facts for every input (never
-// throw), within 2 s per file, and the facts must be plain data (they cross worker threads).
+// throw), within the per-file time budget (hang guard: PER_FILE_MS), and the facts must be plain data (they cross worker threads).
 import { beforeAll, describe, expect, test } from "vitest";
 import * as v8 from "node:v8";
 import fc from "fast-check";
@@ -18,7 +18,7 @@ const files = corpus();
 /** Extracts and checks the invariants; returns the facts. */
 function extractChecked(name: string, text: string, maxFileBytes?: number) {
   const t0 = performance.now();
-  // the editor's budget (the issue's bound: nothing may hang past 2 s on one file)
+  // the editor's budget: extraction stops at it and says so (the guard below only catches a hang)
   const facts = extractFile(name, text, { timeBudgetMs: 1500, ...(maxFileBytes ? { maxFileBytes } : {}) });
   const ms = performance.now() - t0;
   if (ms > PER_FILE_MS) throw new Error(`${name}: extraction took ${ms.toFixed(0)} ms (> ${PER_FILE_MS} ms) on ${text.length} characters`);
@@ -105,7 +105,7 @@ describe("extract layer under mutation", () => {
   });
 
   for (const ext of ["rs", "h", "cc"]) {
-    test(`10,000-deep nesting in a .${ext} file yields facts (or a notice) within 2 s`, () => {
+    test(`10,000-deep nesting in a .${ext} file yields facts (or a notice) within the time budget`, () => {
       for (const src of deepNesting(ext === "rs" ? "rs" : "c")) {
         const facts = extractChecked(`/ws/deep.${ext}`, src);
         // either it read something or it said why not; never silence and never a throw
@@ -123,7 +123,7 @@ describe("extract layer under mutation", () => {
     expect(facts.fns).toEqual([]);
   });
 
-  test("1.5 MB (just under the size limit) of declarations on one line: done within 2 s, with a notice if only partly read", () => {
+  test("1.5 MB (just under the size limit) of declarations on one line: done within the time budget, with a notice if only partly read", () => {
     for (const ext of ["c", "rs"]) {
       const text = longLine(ext === "rs" ? "rs" : "c", 1_500_000);
       const facts = extractChecked(`/ws/long.${ext}`, ext === "rs" ? `fn f() { ${text} }` : text);

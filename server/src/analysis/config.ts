@@ -120,7 +120,8 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
           }
         } else if (typeof v === "object" && v !== null) {
           for (const [name, val] of Object.entries(v as Record<string, unknown>)) {
-            if (typeof val !== "string" && typeof val !== "number" && typeof val !== "bigint" && typeof val !== "boolean") throw new ConfigError(file, `${k}.${name}`, "expected a string or a number");
+            if (!/^[A-Za-z_][A-Za-z0-9_]*(\([A-Za-z0-9_,.\s]*\))?$/.test(name)) throw new ConfigError(file, `${k}.${name}`, "not a C macro name (NAME or NAME(params))");
+            if (typeof val !== "string" && typeof val !== "number" && typeof val !== "bigint" && typeof val !== "boolean") throw new ConfigError(file, `${k}.${name}`, "expected a string, a number or a boolean");
             out[name] = typeof val === "boolean" ? (val ? "1" : "0") : String(val);
           }
         } else throw new ConfigError(file, k, "expected a table of NAME = value or a list of NAME=value");
