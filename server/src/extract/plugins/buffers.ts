@@ -18,7 +18,7 @@ import type { AbiType, CallSite, Expr, FileFacts, FnDecl, Range } from "../../mo
 import type { BufferHint, CBufferFacts, CFnScope, CVar, RustBufferFacts } from "../../model/buffer-facts.js";
 import { parseText } from "../../parse/parser.js";
 import { bodyWalkTypes, cFileExtractors, rustExtractors } from "../hooks.js";
-import { evalConst, indexSubtree, parseIntLit, rangeOf, walk, walkFile, walkTypes } from "../common.js";
+import { ExtractTimeout, evalConst, indexSubtree, parseIntLit, rangeOf, walk, walkFile, walkTypes } from "../common.js";
 import { applyDeclarator, cScalar, readParams, typeFromSpecifier, type DeclCtx } from "../ctypes.js";
 import { rustType } from "../rust.js";
 
@@ -626,6 +626,8 @@ cFileExtractors.file.push((root, facts) => {
     extractCFile(root, facts);
     collectCHints(facts, nullabilityNames(root));
   } catch (e) {
+    // the file's time budget running out is not a failure of ferrule: extractFile reports it
+    if (e instanceof ExtractTimeout) throw e;
     facts.notices.push({ rule: "internal-error", severity: "error", message: `ferrule could not read call sites in ${facts.file}: ${(e as Error).message}`, range: { file: facts.file, line: 0, col: 0, endLine: 0, endCol: 0 } });
   }
 });
@@ -927,6 +929,7 @@ rustExtractors.fnBody.push((fnNode, fn, facts) => {
   try {
     extractRustBody(fnNode, fn, facts);
   } catch (e) {
+    if (e instanceof ExtractTimeout) throw e;
     facts.notices.push({ rule: "internal-error", severity: "error", message: `ferrule could not read the body of \`${fn.name}\` in ${facts.file}: ${(e as Error).message}`, range: fn.nameRange });
   }
 });

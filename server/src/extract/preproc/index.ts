@@ -17,6 +17,7 @@ import type { Triple } from "../../model/targets.js";
 import { K, spell, tokenize, type Tok } from "./lexer.js";
 import { AMBIGUOUS, Expander, ExpansionLimit, MacroTable, parseDefine, type MacroDef, type Reader } from "./expand.js";
 import { evalCondition } from "./cond.js";
+import { ExtractTimeout, extractDeadlinePassed } from "../common.js";
 import { PREDEFINED, PREDEFINED_NAMES } from "./predefined.js";
 
 export { evalCondition, MacroTable, tokenize, spell };
@@ -244,7 +245,10 @@ class Run {
     const closeBranch = (f: Frame, nextStart: number) => {
       if (f.outer && f.mode === "off") blank(f.bodyStart, nextStart);
     };
+    let steps = 0;
     while (i < toks.length) {
+      // the file's time budget covers preprocessing too (checked every 4096 steps)
+      if ((++steps & 4095) === 0 && extractDeadlinePassed()) throw new ExtractTimeout("preprocessing took longer than the file's time budget");
       const d = dirs[di];
       if (d && d.at === i) {
         di++;
