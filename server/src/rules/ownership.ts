@@ -173,6 +173,12 @@ function pointeeKey(t: AbiType, model: Model): string | undefined {
   return undefined;
 }
 
+/** A pointer to a generic instance (`*mut Mutex<Tunn>`), which the model keeps as its text: the
+ * same text on both sides is the same handle type. */
+function instanceKey(t: AbiType): string | undefined {
+  return t.k === "ptr" && t.to.k === "unsafe" && t.to.text ? `t:${t.to.text.replace(/\s+/g, "")}` : undefined;
+}
+
 function pointeeName(t: AbiType): string | undefined {
   return t.k === "ptr" && t.to.k === "named" ? t.to.name : undefined;
 }
@@ -345,7 +351,7 @@ export function ownershipModel(model: Model): OwnershipModel {
     if (prods.length && fn.ret.k === "ptr") {
       const p = prods.find((x) => x.how !== "forget") ?? prods[0]!;
       const how: OwnHow = p.how === "forget" || p.how === "manuallydrop" ? "vec" : p.how;
-      const key = how === "cstring" ? "t:char" : pointeeKey(fn.ret, model) ?? (p.inner ? `t:${normName(p.inner)}` : `v:${stemOf(fn.symbol, CTOR_SUFFIX) ?? fn.symbol}`);
+      const key = how === "cstring" ? "t:char" : pointeeKey(fn.ret, model) ?? (p.inner ? `t:${normName(p.inner)}` : instanceKey(fn.ret) ?? `v:${stemOf(fn.symbol, CTOR_SUFFIX) ?? fn.symbol}`);
       ctors.set(fn.symbol, {
         fn, how, inner: how === "cstring" ? "CString" : p.inner ?? pointeeName(fn.ret), key,
         stem: stemOf(fn.symbol, CTOR_SUFFIX), chain: p.chain, site: p.site,
@@ -355,7 +361,7 @@ export function ownershipModel(model: Model): OwnershipModel {
       releasers.set(fn.symbol, rels.map((r) => {
         const pt0 = fn.params[r.param]!.type;
         const pt = r.deref && pt0.k === "ptr" ? pt0.to : pt0;
-        const key = pointeeKey(pt, model) ?? (r.how === "cstring" ? "t:char" : r.inner ? `t:${normName(r.inner)}` : `v:${stemOf(fn.symbol, REL_SUFFIX) ?? fn.symbol}`);
+        const key = pointeeKey(pt, model) ?? (r.how === "cstring" ? "t:char" : r.inner ? `t:${normName(r.inner)}` : instanceKey(pt) ?? `v:${stemOf(fn.symbol, REL_SUFFIX) ?? fn.symbol}`);
         return { fn, ...r, key, stem: stemOf(fn.symbol, REL_SUFFIX) };
       }));
     }

@@ -57,3 +57,23 @@ pub unsafe extern "C" fn seis_trace_new(samples: *const f32, n: usize) -> Option
 
 #[no_mangle]
 pub extern "C" fn seis_trace_free(_: Option<Box<Trace>>) {}
+
+/// A handle that is a generic instance behind a raw pointer (`*mut Mutex<Gain>`): the
+/// constructor's and the release's pointee spell the same type.
+pub struct Gain {
+    db: f32,
+}
+
+#[no_mangle]
+pub extern "C" fn new_shared_gain(db: f32) -> *mut std::sync::Mutex<Gain> {
+    let g = Box::new(std::sync::Mutex::new(Gain { db }));
+    Box::into_raw(g)
+}
+
+#[no_mangle]
+pub unsafe extern "C" fn shared_gain_release(g: *mut std::sync::Mutex<Gain>) {
+    if g.is_null() {
+        return;
+    }
+    drop(Box::from_raw(g));
+}
