@@ -15,7 +15,7 @@ import { findProjectRoot } from "../server/src/analysis/project.js";
 import { Engine } from "../server/src/lsp/engine.js";
 import { run } from "../server/src/cli/main.js";
 import type { Finding } from "../server/src/rules/api.js";
-import { FIXTURES } from "./helpers/analyze.js";
+import { FIXTURES, analyze, at } from "./helpers/analyze.js";
 
 const WS = path.join(FIXTURES, "project", "beamformer-ws");
 const line = (f: Finding) => `${path.relative(WS, f.range.file)}:${f.range.line + 1} ${f.rule}`;
@@ -128,5 +128,21 @@ describe("project model: beamformer-ws", () => {
     expect(() => parseConfigText("[defines]\n\"9X\" = 1\n", "f.toml")).toThrow(/f\.toml: key `defines\.9X`: not a C macro name/);
     expect(() => parseConfigText("[defines]\nX = [1]\n", "f.toml")).toThrow(/key `defines\.X`: expected a string, a number or a boolean/);
     expect(DEFAULTS.features).toEqual([]);
+  });
+
+  test("a #[no_mangle] extern \"Rust\" function nothing in C names is deliberate; a #[no_mangle] fn without any extern is still reported", async () => {
+    const { findings } = await analyze({
+      "hydro.h": "int hydro_gain(int db);\n",
+      "hydro.rs": [
+        "#[no_mangle]",
+        "pub extern \"C\" fn hydro_gain(db: i32) -> i32 { db }",
+        "/// kept by name so it shows in crash backtraces",
+        "#[no_mangle]",
+        "pub extern \"Rust\" fn hydro_in_user_callback(row: usize) -> usize { row }",
+        "#[no_mangle]",
+        "pub fn hydro_trim(db: f32) -> f32 { db }",
+      ].join("\n"),
+    });
+    expect(at(findings, "export-name-mangled")).toEqual(["hydro.rs:7"]);
   });
 });

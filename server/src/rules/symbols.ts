@@ -169,7 +169,9 @@ export const symbolsFamily: RuleFamily = {
       // Exported name problems, only for functions the C side refers to.
       for (const e of exports) {
         if (protos.length === 0 && defs.length === 0 && imports.length === 0) {
-          if (e.noMangle && (!e.isExtern || e.abi === "Rust")) {
+          // (an explicit `extern "Rust"` with no C declaration is deliberate: a symbol kept for
+          // backtraces or Rust callers, not a C entry point)
+          if (e.noMangle && !e.isExtern) {
             out.push(finding(EXPORT_NOT_UNMANGLED, e.nameRange, `\`${e.name}\` has #[no_mangle] but no \`extern "C"\`: it is exported with the Rust calling convention`, [], { data: { fn: e.id, fix: "add-extern" } }));
           }
           continue;
