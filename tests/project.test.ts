@@ -130,9 +130,10 @@ describe("project model: beamformer-ws", () => {
     expect(DEFAULTS.features).toEqual([]);
   });
 
-  test("a #[no_mangle] extern \"Rust\" function nothing in C names is deliberate; a #[no_mangle] fn without any extern is still reported", async () => {
+  test("deliberate one-sided symbols: #[no_mangle] extern \"Rust\" and private exports are not reported; a #[no_mangle] fn without extern and a pub export without header are", async () => {
     const { findings } = await analyze({
       "hydro.h": "int hydro_gain(int db);\n",
+      "probe.rs": "#[no_mangle]\n#[inline(never)]\nunsafe extern \"C\" fn hydro_bad_handle(p: *const u8) -> bool { p.is_null() }\n#[no_mangle]\npub extern \"C\" fn hydro_reset() -> i32 { 0 }\n",
       "hydro.rs": [
         "#[no_mangle]",
         "pub extern \"C\" fn hydro_gain(db: i32) -> i32 { db }",
@@ -144,5 +145,7 @@ describe("project model: beamformer-ws", () => {
       ].join("\n"),
     });
     expect(at(findings, "export-name-mangled")).toEqual(["hydro.rs:7"]);
+    // a private export kept by name for backtraces is not C API; a pub one without a header is reported
+    expect(at(findings, "no-c-declaration")).toEqual(["probe.rs:5"]);
   });
 });

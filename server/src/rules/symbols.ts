@@ -162,7 +162,9 @@ export const symbolsFamily: RuleFamily = {
       // Rust exports with C linkage but no C-side declaration.
       if (hasC && protos.length === 0 && defs.length === 0) {
         for (const e of properExports) {
-          if (oneSided(model, e)) continue;
+          // (a private export — not `pub` — is kept by name for debuggers or backtraces, not
+          // offered to C as API)
+          if (oneSided(model, e) || e.isPub === false) continue;
           out.push(finding(NO_C_DECLARATION, e.nameRange, `\`${e.symbol}\` is exported to C but no header or C++ file in the workspace declares it`, [], { data: { fn: e.id } }));
         }
       }
