@@ -15,7 +15,7 @@ import { findProjectRoot } from "../server/src/analysis/project.js";
 import { Engine } from "../server/src/lsp/engine.js";
 import { run } from "../server/src/cli/main.js";
 import type { Finding } from "../server/src/rules/api.js";
-import { FIXTURES } from "./helpers/analyze.js";
+import { FIXTURES, analyze, at } from "./helpers/analyze.js";
 
 const WS = path.join(FIXTURES, "project", "beamformer-ws");
 const line = (f: Finding) => `${path.relative(WS, f.range.file)}:${f.range.line + 1} ${f.rule}`;
@@ -128,5 +128,24 @@ describe("project model: beamformer-ws", () => {
     expect(() => parseConfigText("[defines]\n\"9X\" = 1\n", "f.toml")).toThrow(/f\.toml: key `defines\.9X`: not a C macro name/);
     expect(() => parseConfigText("[defines]\nX = [1]\n", "f.toml")).toThrow(/key `defines\.X`: expected a string, a number or a boolean/);
     expect(DEFAULTS.features).toEqual([]);
+  });
+
+  test("deliberate one-sided symbols: #[no_mangle] extern \"Rust\" and private exports are not reported; a #[no_mangle] fn without extern and a pub export without header are", async () => {
+    const { findings } = await analyze({
+      "hydro.h": "int hydro_gain(int db);\n",
+      "probe.rs": "#[no_mangle]\n#[inline(never)]\nunsafe extern \"C\" fn hydro_bad_handle(p: *const u8) -> bool { p.is_null() }\n#[no_mangle]\npub extern \"C\" fn hydro_reset() -> i32 { 0 }\n",
+      "hydro.rs": [
+        "#[no_mangle]",
+        "pub extern \"C\" fn hydro_gain(db: i32) -> i32 { db }",
+        "/// kept by name so it shows in crash backtraces",
+        "#[no_mangle]",
+        "pub extern \"Rust\" fn hydro_in_user_callback(row: usize) -> usize { row }",
+        "#[no_mangle]",
+        "pub fn hydro_trim(db: f32) -> f32 { db }",
+      ].join("\n"),
+    });
+    expect(at(findings, "export-name-mangled")).toEqual(["hydro.rs:7"]);
+    // a private export kept by name for backtraces is not C API; a pub one without a header is reported
+    expect(at(findings, "no-c-declaration")).toEqual(["probe.rs:5"]);
   });
 });

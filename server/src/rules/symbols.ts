@@ -162,15 +162,17 @@ export const symbolsFamily: RuleFamily = {
       // Rust exports with C linkage but no C-side declaration.
       if (hasC && protos.length === 0 && defs.length === 0) {
         for (const e of properExports) {
-          if (oneSided(model, e)) continue;
+          // (a private export — not `pub` — is kept by name for debuggers or backtraces, not
+          // offered to C as API)
+          if (oneSided(model, e) || e.isPub === false) continue;
           out.push(finding(NO_C_DECLARATION, e.nameRange, `\`${e.symbol}\` is exported to C but no header or C++ file in the workspace declares it`, [], { data: { fn: e.id } }));
         }
       }
       // Exported name problems, only for functions the C side refers to.
       for (const e of exports) {
         if (protos.length === 0 && defs.length === 0 && imports.length === 0) {
-          // (an explicit `extern "Rust"` with no C declaration is a deliberate Rust-ABI symbol, for
-          // backtraces or Rust callers: nothing on the C side names it)
+          // (an explicit `extern "Rust"` with no C declaration is deliberate: a symbol kept for
+          // backtraces or Rust callers, not a C entry point)
           if (e.noMangle && !e.isExtern) {
             out.push(finding(EXPORT_NOT_UNMANGLED, e.nameRange, `\`${e.name}\` has #[no_mangle] but no \`extern "C"\`: it is exported with the Rust calling convention`, [], { data: { fn: e.id, fix: "add-extern" } }));
           }
