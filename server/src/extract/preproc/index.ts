@@ -432,6 +432,11 @@ class Run {
       });
     };
     // the macro itself, or the first undecided macro its expansion meets
+    // a macro that may be undefined keeps its name in that reading
+    // (one candidate under an undecided condition; several are taken as the branches of one
+    // #if/#else, which define it either way)
+    const entry = this.table.map.get(first.t);
+    if (entry?.maybeUndef && entry.defs.length === 1) keepsName = true;
     let tables = variants(first.t);
     if (this.table.map.get(first.t)?.defs.length === 1 && !this.table.map.get(first.t)!.maybeUndef) {
       let inner: string | undefined;
