@@ -22,14 +22,21 @@ describe("settings on worker threads", () => {
   test("strip_macros applies whether files are read in this thread or on workers", () => {
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-scale-"));
     try {
-      // an export macro defined in another header: only the setting tells ferrule to blank it
-      fs.writeFileSync(path.join(dir, "api.h"), '#include "export.h"\nRADIO_API int radio_tune(double hz);\n');
+      // an export macro defined in a header outside the workspace: only the setting tells ferrule
+      // to blank it (a workspace header's macros are read through the preprocessor; see below)
+      fs.writeFileSync(path.join(dir, "api.h"), '#include <radio/export.h>\nRADIO_API int radio_tune(double hz);\n');
       fs.writeFileSync(path.join(dir, "export.h"), '#define RADIO_API __attribute__((visibility("default")))\n');
       fs.writeFileSync(path.join(dir, "radio.rs"), '#[no_mangle]\npub extern "C" fn radio_tune(hz: f64) -> i32 { 0 }\n');
       for (const w of [0, 2]) expect(check(dir, w)).toEqual([{ rule: "unknown-macro", file: "api.h", line: 2 }]);
       fs.writeFileSync(path.join(dir, ".ferrule.toml"), 'strip_macros = ["RADIO_API"]\n');
       // the Rust side returns i32, the C side int: clean once the macro is blanked
       for (const w of [0, 2]) expect(check(dir, w)).toEqual([]);
+      // the macro defined in a workspace header the file includes: read on workers too
+      fs.rmSync(path.join(dir, ".ferrule.toml"));
+      fs.writeFileSync(path.join(dir, "api.h"), '#include "export.h"\nRADIO_API int radio_tune(double hz);\n');
+      for (const w of [0, 2]) expect(check(dir, w)).toEqual([]);
+      fs.writeFileSync(path.join(dir, "radio.rs"), '#[no_mangle]\npub extern "C" fn radio_tune(hz: f32) -> i32 { 0 }\n');
+      for (const w of [0, 2]) expect(check(dir, w).map((f) => `${f.rule} ${f.file}:${f.line}`)).toEqual(["param-type-mismatch api.h:2"]);
     } finally {
       fs.rmSync(dir, { recursive: true, force: true });
     }

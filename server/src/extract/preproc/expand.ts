@@ -373,11 +373,23 @@ export class Expander {
       out.push(t);
     }
     const res: Tok[] = [];
+    // tokens of one argument share their hide set: one union per distinct set
+    const unions = new Map<ReadonlySet<string>, ReadonlySet<string>>();
     for (const t of out) {
       if (t.k === K.Special && t.t === "") continue;
-      let h: Set<string>;
-      if (t.hs) { h = new Set(t.hs); for (const x of hs) h.add(x); } else h = hs;
-      res.push({ ...t, hs: h, s: -1, e: -1, bol: false });
+      let h: ReadonlySet<string> = hs;
+      if (t.hs && t.hs !== hs) {
+        let u = unions.get(t.hs);
+        if (!u) {
+          let sub = true;
+          for (const x of hs) if (!t.hs.has(x)) { sub = false; break; }
+          if (sub) u = t.hs;
+          else { const n = new Set(t.hs); for (const x of hs) n.add(x); u = n; }
+          unions.set(t.hs, u);
+        }
+        h = u;
+      }
+      res.push({ k: t.k, t: t.t, s: -1, e: -1, sp: t.sp, bol: false, hs: h, blue: t.blue });
     }
     return res;
   }

@@ -143,13 +143,30 @@ function scan(text: string): Scanned {
   return { toks, dirs };
 }
 
+let scanCacheChars = 0;
+
+/** Tokens of a text, cached (a header is read as an include by many files and as a file of its
+ * own): at most ~8 M characters of text are held. */
 function scanCached(text: string): Scanned {
   const hit = scanCache.get(text);
   if (hit) return hit;
   const s = scan(text);
-  if (scanCache.size > 400) scanCache.clear();
+  if (text.length > 2_000_000) return s;
+  if (scanCacheChars + text.length > 8_000_000) { scanCache.clear(); scanCacheChars = 0; }
   scanCache.set(text, s);
+  scanCacheChars += text.length;
   return s;
+}
+
+/** Whether some line's first non-blank character is `#` (a cheap over-approximation of "has a
+ * directive": a `#` at the start of a line inside a comment also counts). */
+function hasDirective(text: string): boolean {
+  for (let i = text.indexOf("#"); i >= 0; i = text.indexOf("#", i + 1)) {
+    let j = i - 1;
+    while (j >= 0 && (text.charCodeAt(j) === 32 || text.charCodeAt(j) === 9)) j--;
+    if (j < 0 || text.charCodeAt(j) === 10 || text.charCodeAt(j) === 13) return true;
+  }
+  return false;
 }
 
 function lineStart(text: string, at: number): number {
@@ -419,6 +436,11 @@ class Run {
       });
     };
     // the macro itself, or the first undecided macro its expansion meets
+    // a macro that may be undefined keeps its name in that reading
+    // (one candidate under an undecided condition; several are taken as the branches of one
+    // #if/#else, which define it either way)
+    const entry = this.table.map.get(first.t);
+    if (entry?.maybeUndef && entry.defs.length === 1) keepsName = true;
     let tables = variants(first.t);
     if (this.table.map.get(first.t)?.defs.length === 1 && !this.table.map.get(first.t)!.maybeUndef) {
       let inner: string | undefined;
@@ -522,8 +544,13 @@ interface Seg {
 /** Preprocesses one file (never throws on bad input; an internal limit leaves the text as is). */
 export function preprocess(file: string, text: string, env: PreprocEnv): PreprocResult {
   const run = new Run(env, langKindOf(file));
+  if (!hasDirective(text) && ![...run.table.map.keys()].some((k) => text.includes(k))) {
+    // no directive (so no include and no #define) and no predefined or configured macro named:
+    // nothing to expand, and no token stream to build
+    return { text, changed: false, mapCol: (_l, c) => c, reads: [], envKey: quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, []])), ambiguous: [], undecided: [], expansions: 0 };
+  }
   run.included.add(file);
-  run.file(file, text, scan(text), true);
+  run.file(file, text, scanCached(text), true);
   const envKey = quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, run.readKeys]));
   const edits = run.edits.sort((a, b) => a.s - b.s);
   const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], undecided: run.undecided, expansions: run.expansions };

@@ -39,6 +39,10 @@ const PUNCTS = [
   "*=", "/=", "%=", "+=", "-=", "&=", "^=", "|=", "##", "<:", ":>", "<%", "%>", "%:", "::", ".*",
 ];
 const SINGLE = "[](){}.&*+-~!/%<>^|?:;=,#";
+/** Every proper prefix-extension of a punctuator (and the comment openers): two punctuators
+ * printed side by side need a space when the first and the second's first character start one. */
+const JOINS = new Set<string>(["//", "/*", ".."]);
+for (const p of PUNCTS) for (let i = 2; i <= p.length; i++) JOINS.add(p.slice(0, i));
 
 function isIdStart(c: number): boolean {
   return (c >= 97 && c <= 122) || (c >= 65 && c <= 90) || c === 95 || c === 36 || c >= 128;
@@ -187,10 +191,7 @@ function needsSpace(a: Tok, b: Tok): boolean {
   const wordB = b.k === K.Ident || b.k === K.Number;
   if (wordA && (wordB || b.k === K.String || b.k === K.Char)) return true;
   if (a.k === K.Number && b.t.startsWith(".")) return true;
-  if (a.k === K.Punct && b.k === K.Punct) {
-    const joined = tokenize(a.t + b.t);
-    return joined.length !== 2;
-  }
+  if (a.k === K.Punct && b.k === K.Punct) return JOINS.has(a.t + b.t.charAt(0));
   if (a.k === K.Punct && a.t === "." && b.k === K.Number) return true;
   return false;
 }
