@@ -22,6 +22,17 @@ function ferrule(args: string[], cwd: string) {
   return { code: r.status, signal: r.signal, out: r.stdout, err: r.stderr };
 }
 
+/** `ferrule check --format json` parsed; when stdout is not JSON, the error says why (exit code,
+ * signal, stderr) instead of "Unexpected end of JSON input". */
+function checkJson(args: string[], cwd: string): { findings: Array<Record<string, any>> } {
+  const r = ferrule(["check", "--format", "json", ...args], cwd);
+  try {
+    return JSON.parse(r.out);
+  } catch {
+    throw new Error(`ferrule ${args.join(" ")} in ${cwd}: exit ${r.code}, signal ${r.signal}, stdout ${JSON.stringify(r.out.slice(0, 400))}, stderr ${JSON.stringify(r.err.slice(0, 2000))}`);
+  }
+}
+
 /** A small workspace with one real slip: `long` (4 bytes on armv7/i686/windows) against `i64`. */
 function workspace(files: Record<string, string | Buffer> = {}): string {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-hostile-"));
@@ -148,14 +159,14 @@ describe("exclude globs", () => {
     expect(ex.test("src/lib.rs")).toBe(false);
     expect(ex.unused()).toEqual(["nothing-here/**"]);
     const dir = workspace({ ".ferrule.toml": "exclude = [\"nothing-here/**\"]\n" });
-    const j = JSON.parse(ferrule(["check", "--format", "json", "."], dir).out);
+    const j = checkJson(["."], dir);
     expect(j.findings.some((f: { message: string }) => /exclude pattern `nothing-here\/\*\*` matches no file/.test(f.message))).toBe(true);
   });
 });
 
 describe("line endings and encodings", () => {
   const slipAt = (dir: string) =>
-    JSON.parse(ferrule(["check", "--format", "json", "."], dir).out).findings
+    checkJson(["."], dir).findings
       .filter((f: { rule: string }) => f.rule === "param-type-mismatch")
       .map((f: { file: string; line: number; column: number }) => `${f.file}:${f.line}:${f.column}`);
 
@@ -175,7 +186,7 @@ describe("line endings and encodings", () => {
     const le = Buffer.concat([Buffer.from([0xff, 0xfe]), Buffer.from(h, "utf16le")]);
     const dir = workspace({ "include/tally.h": le });
     expect(slipAt(dir)).toEqual(["include/tally.h:5:38"]);
-    const notes = JSON.parse(ferrule(["check", "--format", "json", "."], dir).out).findings.filter((f: { rule: string }) => f.rule === "file-encoding");
+    const notes = checkJson(["."], dir).findings.filter((f: { rule: string }) => f.rule === "file-encoding");
     expect(notes.map((f: { message: string }) => f.message)).toEqual([expect.stringMatching(/UTF-16 \(little-endian/)]);
   });
 
