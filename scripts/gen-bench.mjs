@@ -41,10 +41,10 @@ export const PLANT_KINDS = [
   "param-type-mismatch",
   "pointer-constness",
   "export-name-mangled",
-  "no-definition",
-  "no-c-declaration",
+  "declaration-without-definition",
+  "export-without-declaration",
   "callback-mismatch",
-  "cxx-needs-c-linkage",
+  "header-lacks-c-linkage",
   "not-c-representable",
   "return-type-mismatch",
   "param-signedness",
@@ -333,10 +333,10 @@ function genUnit(r, scen, kind, idx, crate, plant) {
     `}`,
     ``,
   );
-  if (plant === "no-c-declaration") {
+  if (plant === "export-without-declaration") {
     rs.add(`/// Drops pending events (not yet in the header).`, nm);
     line = rs.at(`pub unsafe extern "C" fn ${P}_drain(h: *mut ${T}State) -> c_int {`);
-    exp("no-c-declaration", rs, line);
+    exp("export-without-declaration", rs, line);
     rs.add(`    if h.is_null() { -1 } else { 0 }`, `}`, ``);
   }
   rs.add(
@@ -351,7 +351,7 @@ function genUnit(r, scen, kind, idx, crate, plant) {
 
   // ---------------- C header ----------------
   const G = `${P.toUpperCase()}_H`;
-  const guarded = plant !== "cxx-needs-c-linkage";
+  const guarded = plant !== "header-lacks-c-linkage";
   h.add(
     `/* ${scen.title}: C interface of the Rust ${kdesc} kernel ${idx} (hand-written). */`,
     `#ifndef ${G}`,
@@ -391,7 +391,7 @@ function genUnit(r, scen, kind, idx, crate, plant) {
   );
   const proto = (text, rule) => {
     const l = h.at(text);
-    if (!guarded) exp("cxx-needs-c-linkage", h, l);
+    if (!guarded) exp("header-lacks-c-linkage", h, l);
     if (rule) exp(rule, h, l);
     return l;
   };
@@ -411,9 +411,9 @@ function genUnit(r, scen, kind, idx, crate, plant) {
   proto(`size_t ${P}_history_len(const ${T}State *h);`, plant === "return-type-mismatch" ? "return-type-mismatch" : undefined);
   if (plant === "arity-mismatch") proto(`void ${P}_reset(${T}State *h, int hard);`, "arity-mismatch");
   else proto(`void ${P}_reset(${T}State *h);`);
-  if (plant === "no-definition") {
+  if (plant === "declaration-without-definition") {
     h.add(`/* Flushes pending output (the Rust side was never written). */`);
-    exp("no-definition", h, h.at(`int ${P}_flush(${T}State *h);`));
+    exp("declaration-without-definition", h, h.at(`int ${P}_flush(${T}State *h);`));
   }
   proto(`void ${P}_free(${T}State *h);`);
   h.add(``);

@@ -82,7 +82,7 @@ void k_gain_i16(int16_t *buf, size_t n, float g);
 `;
   const rules = (fs_: Finding[]) => fs_.map((f) => `${f.rule}@${f.range.file.replace(/^\/ws\//, "")}:${f.range.line + 1}`);
 
-  it("a C declaration that an item-level macro invocation names (identifier or one-word string, in a module too) is an info note, not `no-definition`", async () => {
+  it("a C declaration that an item-level macro invocation names (identifier or one-word string, in a module too) is an info note, not `declaration-without-definition`", async () => {
     const r = await analyze({
       "k.h": HDR,
       "k.rs": `${MACRO}kern!(k_gain_f32, f32);\nmod pcm {\n    crate::kern_named! { "k_gain_i16", i16 }\n}\n`,
@@ -98,10 +98,10 @@ void k_gain_i16(int16_t *buf, size_t n, float g);
     expect(md).not.toContain("No Rust side found");
   });
 
-  it("still `no-definition`: a macro invocation naming another symbol (a renamed kernel), the name only in a function body or in a macro_rules! definition never invoked", async () => {
+  it("still `declaration-without-definition`: a macro invocation naming another symbol (a renamed kernel), the name only in a function body or in a macro_rules! definition never invoked", async () => {
     // the link fails on each: `undefined reference to k_gain_f32` (ld), since no item defines it
     const renamed = await analyze({ "k.h": HDR, "k.rs": `${MACRO}kern!(k_gain_f64, f64);\nkern!(k_gain_i16, i16);\n` });
-    expect(rules(renamed.findings).sort()).toEqual(["macro-may-define@k.h:4", "no-definition@k.h:3"]);
+    expect(rules(renamed.findings).sort()).toEqual(["declaration-without-definition@k.h:3", "macro-may-define@k.h:4"]);
     const notItems = await analyze({
       "k.h": HDR,
       "k.rs": `macro_rules! kern_f32 {
@@ -114,7 +114,7 @@ ${MACRO}kern!(k_gain_i16, i16);
 pub fn log() { println!("{}", stringify!(k_gain_f32)); }
 `,
     });
-    expect(rules(notItems.findings).sort()).toEqual(["macro-may-define@k.h:4", "no-definition@k.h:3"]);
+    expect(rules(notItems.findings).sort()).toEqual(["declaration-without-definition@k.h:3", "macro-may-define@k.h:4"]);
   });
 
   it("the file of the invocation relates to the header by the name (keys), so the CLI's chunks and the editor's scopes see it", async () => {
@@ -125,7 +125,7 @@ pub fn log() { println!("{}", stringify!(k_gain_f32)); }
     expect(k.use.has("s:hyd_gain_i16")).toBe(true);
   });
 
-  it("the language server: renaming the symbol in the invocation brings `no-definition` back, equal to a fresh analysis", async () => {
+  it("the language server: renaming the symbol in the invocation brings `declaration-without-definition` back, equal to a fresh analysis", async () => {
     const ws = await Workspace.create();
     const engine = new Engine(ws);
     try {
@@ -142,7 +142,7 @@ pub fn log() { println!("{}", stringify!(k_gain_f32)); }
       engine.change(GAIN_RS, [{ range: { start: { line, character: ch }, end: { line, character: ch + 3 } }, text: "s16" }], 2);
       const res = engine.analyze();
       const key = (f: Finding) => `${f.rule}|${path.relative(DIR, f.range.file)}:${f.range.line + 1}`;
-      expect(res.findings.map(key).sort()).toEqual(["macro-may-define|include/hyd/hyd_kernels.h:27", "no-definition|include/hyd/hyd_kernels.h:30"]);
+      expect(res.findings.map(key).sort()).toEqual(["declaration-without-definition|include/hyd/hyd_kernels.h:30", "macro-may-define|include/hyd/hyd_kernels.h:27"]);
       const fresh = await Workspace.create();
       fresh.loadAll([DIR]);
       fresh.update(GAIN_RS, text.replace("hyd_gain_i16", "hyd_gain_s16"));

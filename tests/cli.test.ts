@@ -45,8 +45,8 @@ describe("ferrule check on the demo", () => {
     // 4: no #[no_mangle]
     expect(find("export-name-mangled", RS, 81)?.related[0]).toMatchObject({ file: H, line: 27 });
     // 5: renamed on one side
-    expect(find("no-definition", H, 20)).toBeTruthy();
-    expect(find("no-c-declaration", RS, 46)).toBeTruthy();
+    expect(find("declaration-without-definition", H, 20)).toBeTruthy();
+    expect(find("export-without-declaration", RS, 46)).toBeTruthy();
     // 6: nullable callback
     expect(find("callback-mismatch", H, 28)?.severity).toBe("warning");
   });

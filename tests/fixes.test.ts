@@ -23,7 +23,7 @@ function load(dir: string): Record<string, string> {
   return out;
 }
 
-const FIXABLE = ["param-type-mismatch", "pointer-constness", "return-type-mismatch", "arity-mismatch", "export-name-mangled", "cxx-needs-c-linkage", "no-c-declaration", "callback-mismatch", "param-signedness"];
+const FIXABLE = ["param-type-mismatch", "pointer-constness", "return-type-mismatch", "arity-mismatch", "export-name-mangled", "header-lacks-c-linkage", "export-without-declaration", "callback-mismatch", "param-signedness"];
 
 describe("preferred fixes remove their finding", () => {
   for (const dir of ["sonar-demo", "rules/signatures/bad", "rules/symbols/bad", "rules/linkage/bad"]) {

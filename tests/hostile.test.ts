@@ -24,7 +24,7 @@ function ferrule(args: string[], cwd: string) {
 
 /** `ferrule check --format json` parsed; when stdout is not JSON, the error says why (exit code,
  * signal, stderr) instead of "Unexpected end of JSON input". */
-function checkJson(args: string[], cwd: string): { findings: Array<Record<string, any>> } {
+function checkJson(args: string[], cwd: string): { findings: any[] } {
   const r = ferrule(["check", "--format", "json", ...args], cwd);
   try {
     return JSON.parse(r.out);

@@ -22,11 +22,11 @@ const line = (f: Finding) => `${path.relative(WS, f.range.file)}:${f.range.line 
 
 /** The planted slips, each still found (1-based lines). */
 const SLIPS = [
-  "beam-core/include/beam.h:20 no-definition", // beam_flush: declared, defined nowhere
+  "beam-core/include/beam.h:20 declaration-without-definition", // beam_flush: declared, defined nowhere
   "beam-core/src/kernels.rs:38 export-name-mangled", // beam_level: declared in C, no #[no_mangle]
-  "beam-core/src/kernels.rs:50 no-c-declaration", // beam_reset: exported, beam.h lacks it
+  "beam-core/src/kernels.rs:50 export-without-declaration", // beam_reset: exported, beam.h lacks it
   "beam-core/src/kernels.rs:63 duplicate-symbol", // beam_sample_rate: cfg(unix) and cfg(64-bit) both hold on x86_64/aarch64
-  "beam-core/src/sys.rs:19 no-definition", // beam_window_fil: a typo of beam_window_fill in a block whose other imports resolve
+  "beam-core/src/sys.rs:19 declaration-without-definition", // beam_window_fil: a typo of beam_window_fill in a block whose other imports resolve
   "c/host/beam_window.c:18 duplicate-symbol", // beam_gain: C host helper and Rust kernel in one library
 ];
 /** One notice per crate whose exports are declared elsewhere on purpose. */
@@ -146,6 +146,6 @@ describe("project model: beamformer-ws", () => {
     });
     expect(at(findings, "export-name-mangled")).toEqual(["hydro.rs:7"]);
     // a private export kept by name for backtraces is not C API; a pub one without a header is reported
-    expect(at(findings, "no-c-declaration")).toEqual(["probe.rs:5"]);
+    expect(at(findings, "export-without-declaration")).toEqual(["probe.rs:5"]);
   });
 });

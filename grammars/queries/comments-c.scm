@@ -1,2 +1,2 @@
-; Comments of a C or C++ file (suppression comments `ferrule-allow(rule): reason` live here).
+; Comments of a C or C++ file (suppression comments `ferrule: accept rule because reason` live here).
 (comment) @comment

@@ -1,3 +1,3 @@
-; Comments of a Rust file (suppression comments `ferrule-allow(rule): reason` live here).
+; Comments of a Rust file (suppression comments `ferrule: accept rule because reason` live here).
 (line_comment) @comment
 (block_comment) @comment

@@ -76,8 +76,8 @@ describe("configuration in the editor", () => {
     const lines = fs.readFileSync(h, "utf8").split("\n");
     const i = lines.findIndex((l) => l.startsWith("int sonar_fir_process("));
     const j = lines.findIndex((l) => l.startsWith("void sonar_fft_mag("));
-    lines.splice(j, 0, "/* ferrule-allow(pointer-constness) */");
-    lines.splice(i, 0, "/* ferrule-allow(param-type-mismatch): output is converted by a wrapper in this block */");
+    lines.splice(j, 0, "/* ferrule: accept pointer-constness */");
+    lines.splice(i, 0, "/* ferrule: accept param-type-mismatch because output is converted by a wrapper in this block */");
     fs.writeFileSync(h, lines.join("\n"));
     const cl = await openHeader(d);
     const ds = messages(cl, h);

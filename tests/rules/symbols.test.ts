@@ -5,10 +5,10 @@ describe("symbols family", () => {
   test("bad fixture: every symbol slip at its line", async () => {
     const { lines, findings } = await checkDir("rules/symbols/bad");
     expect(lines.sort()).toEqual([
-      "strike.h:9 no-definition", // strike_threshold: declared, defined nowhere
+      "strike.h:9 declaration-without-definition", // strike_threshold: declared, defined nowhere
       "strike.rs:10 export-name-mangled", // strike_gain: #[no_mangle] without extern "C"
-      "strike.rs:16 no-definition", // strike_led_blink: imported, no C side
-      "strike.rs:5 no-c-declaration", // strike_count_reset: exported, no header
+      "strike.rs:16 declaration-without-definition", // strike_led_blink: imported, no C side
+      "strike.rs:5 export-without-declaration", // strike_count_reset: exported, no header
       "strike.rs:7 export-name-mangled", // strike_window_ms: extern "C" without #[no_mangle]
       "strike_fallback.c:2 duplicate-symbol", // strike_rate: defined in Rust and in C
     ].sort());

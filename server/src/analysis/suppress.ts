@@ -1,9 +1,9 @@
 // Inline suppressions of our own design. A comment on the finding's line, or on the line above:
 //
-//     // ferrule-allow(param-signedness): lengths never exceed 2^31 on this block
-//     /* ferrule-allow(rule-a, rule-b): reason */
+//     // ferrule: accept param-signedness because lengths never exceed 2^31 on this block
+//     /* ferrule: accept rule-a, rule-b because reason */
 //
-// The reason after the colon is required; a suppression without one suppresses nothing and is
+// The reason after `because` is required; a suppression without one suppresses nothing and is
 // itself reported, so every silenced finding has a written justification next to it.
 
 import type { Model } from "../model/boundary.js";
@@ -28,7 +28,7 @@ export function applySuppressions(findings: Finding[], model: Model): Finding[] 
       if (!x.reason) {
         extraFindings.push({
           rule: SUPPRESSION_RULE, severity: "warning", range: x.range, related: [],
-          message: `this ferrule-allow comment has no reason, so it suppresses nothing: write \`ferrule-allow(${x.rules.join(", ") || "rule-id"}): why this is safe\``,
+          message: `this \`ferrule: accept\` comment gives no reason, so it accepts nothing: write \`ferrule: accept ${x.rules.join(", ") || "rule-id"} because <why this is safe>\``,
         });
       }
     }

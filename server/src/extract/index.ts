@@ -23,21 +23,23 @@ function lineStarts(text: string): number[] {
   return out;
 }
 
-const ALLOW_RE = /ferrule-allow\(([^)]*)\)\s*(?::\s*(.*?))?\s*(?:\*\/)?$/;
+// `ferrule: accept rule-a, rule-b because <reason>`. Text after the rule list that does not start
+// with `because` is not a reason: the comment accepts nothing and is reported.
+const ACCEPT_RE = /ferrule:\s*accept\s+([a-z0-9-]+(?:\s*,\s*[a-z0-9-]+)*)(.*)$/;
+const BECAUSE_RE = /^\s*because\b\s*(.*?)\s*(?:\*\/)?$/;
 
-/** Collects `ferrule-allow(rule): reason` comments (comment nodes only, found by a cursor walk). */
-/** Collects `ferrule-allow(rule): reason` comments, found with a tree-sitter query (runs in wasm). */
+/** Collects `ferrule: accept rule because reason` comments, found with a tree-sitter query (runs in wasm). */
 function collectSuppressions(t: Tree, facts: FileFacts): void {
   const out: Suppression[] = [];
   const lang: Lang = facts.lang === "rust" ? "rust" : t.getLanguage() === getLanguage("cpp") ? "cpp" : "c";
   const q = grammarQuery(lang, lang === "rust" ? "comments-rust.scm" : "comments-c.scm");
   for (const { node } of q.captures(t.rootNode)) {
-    const m = ALLOW_RE.exec(node.text.trim());
+    const m = ACCEPT_RE.exec(node.text.trim());
     if (!m) continue;
     out.push({
       line: node.startPosition.row, endLine: node.endPosition.row,
       rules: m[1]!.split(",").map((x) => x.trim()).filter(Boolean),
-      reason: (m[2] ?? "").trim(),
+      reason: (BECAUSE_RE.exec(m[2] ?? "")?.[1] ?? "").trim(),
       range: rangeOf(facts.file, node),
     });
   }
@@ -159,7 +161,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     if (lang === "rust") {
       tree = parseText("rust", text, reusable(opts.oldTree, "rust"), budget);
       const rf = extractRust(file, tree, opts.itemCache, text);
-      if (text.includes("ferrule-allow")) collectSuppressions(tree, rf);
+      if (text.includes("ferrule:")) collectSuppressions(tree, rf);
       return timed(rf);
     }
     let useLang: Lang = lang;
@@ -232,7 +234,7 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
         });
       }
     }
-    if (text.includes("ferrule-allow")) collectSuppressions(tree, facts);
+    if (text.includes("ferrule:")) collectSuppressions(tree, facts);
     return timed(facts);
   } catch (e) {
     const f = emptyFacts(file, lang);

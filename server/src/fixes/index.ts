@@ -138,6 +138,6 @@ registerFix("callback-mismatch", paramSync);
 registerFix("return-type-mismatch", paramSync);
 registerFix("arity-mismatch", syncWholePrototype);
 registerFix("export-name-mangled", rustExportFix);
-registerFix("cxx-needs-c-linkage", linkageFix);
-registerFix("no-c-declaration", addDeclarationFix);
+registerFix("header-lacks-c-linkage", linkageFix);
+registerFix("export-without-declaration", addDeclarationFix);
 import "./ownership.js";

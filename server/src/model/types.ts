@@ -275,7 +275,7 @@ export function rangeKey(r: Range): string {
   return `${r.file}:${r.line}:${r.col}`;
 }
 
-/** An inline `ferrule-allow(rule): reason` comment (see analysis/suppress.ts). */
+/** An inline `ferrule: accept rule because reason` comment (see analysis/suppress.ts). */
 export interface Suppression {
   line: number;
   endLine: number;

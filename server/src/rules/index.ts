@@ -5,7 +5,7 @@ import type { Model } from "../model/boundary.js";
 import type { Finding, GatheredItem, RuleFamily, RuleMeta } from "./api.js";
 import { symbolsFamily } from "./symbols.js";
 import { signaturesFamily } from "./signatures.js";
-import { ffiSafetyFamily } from "./ffi-safety.js";
+import { cRepresentationFamily } from "./c-representation.js";
 import { linkageFamily } from "./linkage.js";
 import { layoutFamily } from "./layout.js";
 import { buffersFamily } from "./buffers.js";
@@ -41,12 +41,12 @@ export const UNKNOWN_MACRO: RuleMeta = {
 export const SUPPRESSION_WITHOUT_REASON: RuleMeta = {
   id: "suppression-without-reason",
   severity: "warning",
-  summary: "A `ferrule-allow(rule)` comment has no reason after the colon, so it suppresses nothing.",
+  summary: "A `ferrule: accept <rule>` comment gives no reason after `because`, so it accepts nothing.",
   why: "Every silenced finding should carry a written justification next to it.",
 };
 
 export const FAMILIES: RuleFamily[] = [
-  symbolsFamily, signaturesFamily, ffiSafetyFamily, linkageFamily, layoutFamily, buffersFamily, ownershipFamily,
+  symbolsFamily, signaturesFamily, cRepresentationFamily, linkageFamily, layoutFamily, buffersFamily, ownershipFamily,
 ];
 
 /** Lets later rule families register themselves without editing this list by hand. */

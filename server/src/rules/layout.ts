@@ -67,7 +67,7 @@ export interface Pair {
   c: TypeDecl;
   /** How they were matched, for messages. */
   via: string;
-  /** Only ever passed by value (the ffi-safety family reports a missing repr then). */
+  /** Only ever passed by value (the c-representation family reports a missing repr then). */
   byValueOnly: boolean;
   /**
    * Paired by name alone: no seam function passes either type (as a parameter or return, through

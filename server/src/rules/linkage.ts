@@ -4,7 +4,7 @@ import type { Model } from "../model/boundary.js";
 import { finding, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
 
 export const CXX_LINKAGE: RuleMeta = {
-  id: "cxx-needs-c-linkage",
+  id: "header-lacks-c-linkage",
   severity: "error",
   summary: "A C++ file sees a seam function without extern \"C\" (directly, or through a header it includes that has no extern \"C\" guard).",
   why: "A C++ compiler mangles the name (e.g. with parameter types encoded), so the call links against a symbol Rust never exported.",

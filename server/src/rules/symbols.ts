@@ -7,13 +7,13 @@ import { condText } from "../model/conditions.js";
 import { finding, targetPhrase, type Finding, type GatheredItem, type RuleFamily, type RuleMeta } from "./api.js";
 
 export const NO_C_DECLARATION: RuleMeta = {
-  id: "no-c-declaration",
+  id: "export-without-declaration",
   severity: "warning",
   summary: "A Rust function exported with C linkage has no C or C++ declaration in the workspace.",
   why: "C++ code cannot call it without a declaration; usually the header fell out of step or the name was changed on one side only.",
 };
 export const NO_DEFINITION: RuleMeta = {
-  id: "no-definition",
+  id: "declaration-without-definition",
   severity: "warning",
   summary: "A function declared for the seam (C prototype or Rust extern block item) is defined nowhere in the workspace.",
   why: "The linker matches by name only: a renamed or removed export shows up as an undefined symbol at link time, or links against the wrong library.",

@@ -1,4 +1,4 @@
-// Rule family "ffi-safety": types in an extern "C" signature must have a C representation.
+// Rule family "c-representation": types in an extern "C" signature must have a C representation.
 
 import type { Model } from "../model/boundary.js";
 import type { AbiType, FnDecl } from "../model/types.js";
@@ -89,8 +89,8 @@ function check(model: Model, fn: FnDecl, out: Finding[]) {
   if (q && fn.retRange) report(out, q, fn.retRange, `return type \`${fn.retText}\` of extern "${fn.abi}" fn \`${fn.name}\`: ${q.why}`, { fn: fn.id, ret: true });
 }
 
-export const ffiSafetyFamily: RuleFamily = {
-  name: "ffi-safety",
+export const cRepresentationFamily: RuleFamily = {
+  name: "c-representation",
   rules: [NOT_C_TYPE],
   check(model: Model): Finding[] {
     const out: Finding[] = [];

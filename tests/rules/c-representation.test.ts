@@ -9,13 +9,13 @@ function have(tool: string): boolean {
   try { execFileSync("which", [tool], { stdio: "pipe" }); return true; } catch { return false; }
 }
 
-describe("ffi-safety family", () => {
+describe("c-representation family", () => {
   test("bad fixture: slices, &str, non-repr(C) by value, Vec, tuples, char, bare enum, Rust-ABI fn", async () => {
-    const { lines } = await checkDir("rules/ffi-safety/bad");
+    const { lines } = await checkDir("rules/c-representation/bad");
     expect(lines).toEqual([12, 15, 18, 21, 24, 27, 30, 33].map((l) => `detector.rs:${l} not-c-representable`));
   });
   test("good fixture: repr(C), repr(transparent), repr(u8), pointers to Rust-only types, references, Option<Box>, Option<fn>", async () => {
-    const { lines } = await checkDir("rules/ffi-safety/good");
+    const { lines } = await checkDir("rules/c-representation/good");
     expect(lines).toEqual([]);
   });
 });
@@ -38,13 +38,13 @@ test("Option<Alias> where the alias is an extern \"C\" fn type (declared anywher
 // a type from a crate outside the workspace, is an `info`: ferrule cannot see its repr, and the
 // oracle build leaves it out).
 describe("not-c-representable: generic instances and names declared twice", () => {
-  const DIR = path.join(FIXTURES, "ffi-safety/not-c-representable");
+  const DIR = path.join(FIXTURES, "c-representation/not-c-representable");
   test("good: repr(C) generic instance, transparent niche wrapper in Option, lifetime-only generics, the module's own repr(C) enum, wasm imports", async () => {
-    const { lines } = await checkDir("ffi-safety/not-c-representable/good");
+    const { lines } = await checkDir("c-representation/not-c-representable/good");
     expect(lines).toEqual([]);
   });
   test("bad: generic without repr(C), a repr(C) generic over Vec, Option around a raw-pointer wrapper, an enum without repr; a foreign generic is info", async () => {
-    const { findings } = await checkDir("ffi-safety/not-c-representable/bad");
+    const { findings } = await checkDir("c-representation/not-c-representable/bad");
     const nc = findings.filter((f) => f.rule === "not-c-representable");
     expect(nc.filter((f) => f.severity === "error").map((f) => f.range.line + 1)).toEqual([28, 34, 39, 44]);
     expect(nc.filter((f) => f.severity === "info").map((f) => f.range.line + 1)).toEqual([49]);
