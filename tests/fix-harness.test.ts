@@ -81,6 +81,8 @@ function compiles(root: string, texts: Record<string, string>, file: string): bo
 
 // root|rule|fix title → why it does not pass yet (the rest of #17).
 const KNOWN_BROKEN: Record<string, string> = {
+  "signatures/callback-mismatch|callback-mismatch|Change the Rust parameter to match C: `*mut Option<unsafe extern \"C\" fn(f32, *mut core::ffi::c_void) -> core::ffi::c_int>`": "an imported declaration: callers pass the old type; finding still there",
+  "signatures/pointer-constness|pointer-constness|Change the Rust parameter to match C: `*mut f32`": "an imported declaration: the Rust callers pass the old pointer type",
   "buffers/copy-count-mismatch/bad|panic-across-c-abi|Catch panics: wrap the body in std::panic::catch_unwind and return nothing on panic": "the wrapped body shows a copy-count-mismatch the rule did not see before",
   "macros/hydrophone|header-lacks-c-linkage|Wrap the declarations in an extern \"C\" guard for C++": "the guard lands where the finding is still reported",
   "macros/hydrophone|return-type-mismatch|Replace the C prototype with one generated from the Rust signature": "generated prototype drops the header's macros/typedef names: hydro.h and hydro.c no longer compile",
@@ -91,14 +93,8 @@ const KNOWN_BROKEN: Record<string, string> = {
   "ownership/panic-across-c-abi|panic-across-c-abi|Catch panics: wrap the body in std::panic::catch_unwind and return `0` on panic": "a helper's assert is still reported after wrapping",
   "signatures/callback-mismatch|callback-mismatch|Change the Rust parameter to match C: `Option<unsafe extern \"C\" fn(u32, *mut core::ffi::c_void) -> core::ffi::c_int>`": "inline Option<fn> replaces the user's alias; the body's call no longer compiles",
   "signatures/callback-mismatch|callback-mismatch|Change the C parameter to match Rust: `rt_progress_fn cb`": "finding still there",
-  "signatures/callback-mismatch|callback-mismatch|Change the Rust parameter to match C: `*mut Option<unsafe extern \"C\" fn(f32, *mut core::ffi::c_void) -> core::ffi::c_int>`": "alias replaced inline; body no longer compiles; finding still there",
-  "signatures/pointer-constness|pointer-constness|Change the Rust parameter to match C: `*const rt_corr_cfg`": "the body writes through the pointer",
-  "signatures/pointer-constness|pointer-constness|Change the Rust parameter to match C: `*mut f32`": "the body's uses of the old type no longer compile",
-  "signatures/pointer-constness|pointer-constness|Change the Rust parameter to match C: `*mut rt_corr_cfg`": "the body's uses of the old type no longer compile",
   "signatures/pointer-constness|pointer-constness|Change the C parameter to match Rust: `const float **rows`": "const float ** is still writable at the outer level: new pointer-constness",
   "sonar-demo|param-type-mismatch|Change the C parameter to match Rust: `float *output`": "the C++ caller passes std::vector<double> data: beamformer_block.cc no longer compiles",
-  "sonar-demo|param-type-mismatch|Change the Rust parameter to match C: `*mut f64`": "the body's f32 arithmetic no longer compiles",
-  "sonar-demo|pointer-constness|Change the Rust parameter to match C: `*const f32`": "the body writes through the pointer (from_raw_parts_mut)",
   "sonar-demo|callback-mismatch|Change the Rust parameter to match C: `Option<unsafe extern \"C\" fn(*mut core::ffi::c_void, f32)>`": "inline Option<fn> replaces the user's alias; the body's call no longer compiles",
 };
 
