@@ -558,6 +558,30 @@ function effLevel(fn: FnDecl, p: RustPanic, active: number): "warning" | "info" 
   return "warning";
 }
 
+/** Bits of the parameters of an exported Rust function that are handles to objects the crate
+ * made: the Rust parameter points to a named Rust struct, and every C declaration of the
+ * function takes there a pointer to a struct C leaves incomplete (declared, never defined). */
+export function opaqueHandleParams(model: Model, fn: FnDecl): number {
+  const cs = model.symbols.get(fn.symbol)?.c ?? [];
+  if (!cs.length) return 0;
+  let mask = 0;
+  fn.params.forEach((p, i) => {
+    if (i >= 30 || p.type.k !== "ptr" || p.type.to.k !== "named") return;
+    const rt = model.aggregate(p.type.to, "rust", fn.file);
+    if (!rt || rt.kind !== "struct") return;
+    const opaque = cs.every((c) => {
+      const ct = c.params[i] ? model.resolve(c.params[i]!.type, "c") : undefined;
+      if (ct?.k !== "ptr") return false;
+      const to = model.resolve(ct.to, "c");
+      if (to.k !== "named") return false;
+      const agg = model.aggregate(to, "c", c.file);
+      return !agg || agg.kind === "opaque";
+    });
+    if (opaque) mask |= 1 << i;
+  });
+  return mask;
+}
+
 function levelOf(p: Site): "warning" | "info" {
   return p.eff;
 }
@@ -643,8 +667,11 @@ function checkPanics(model: Model, out: Finding[]): void {
     if (fn.lang !== "rust" || fn.role !== "export" || !fn.isExtern || fn.abi === "Rust" || PANIC_ABIS_UNWIND.test(fn.abi)) continue;
     const o = own(fn);
     if (!o) continue;
-    // every parameter of the exported function is C's
-    const all = -1;
+    // every parameter of the exported function is C's, except a handle C holds only as a
+    // pointer to an incomplete type: the object behind it is the crate's (made by its own
+    // constructor), C cannot write its fields (C11 6.2.5p1, 6.5.2.3: no member access through
+    // a pointer to an incomplete struct type)
+    const all = -1 & ~opaqueHandleParams(model, fn);
     const direct = live(fn, o, all);
     const viaHelpers: { call: Range; chain: FnDecl[]; site: Site }[] = [];
     for (const c of o.calls) {

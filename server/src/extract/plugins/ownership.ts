@@ -359,7 +359,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
           const d = sense.assertDeps(n, mac);
           if (d !== "const") {
             site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
-            const needs = mac === "assert" ? sense.assertNeeds(n, paramNames) : undefined;
+            const needs = mac === "assert" || mac === "assert_ne" ? sense.assertNeeds(n, paramNames, mac) : undefined;
             if (needs) own.panics[own.panics.length - 1]!.needs = needs;
           }
         } else if (kind && !sense.armUnreachable(n)) site(kind, `${mac}!`, n, "warning", sense.branchTaint(n));
@@ -411,7 +411,9 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     const prot = isProtected(n);
     sense.onCall(n, range);
     const under = sense.underOf(n);
-    const argTaint = args.map((a) => (sense.isConstExpr(a) ? 0 : sense.taintOf(a)));
+    // an argument made by a crate function (`Frames::new(buf, n)?`) carries that function's
+    // value, as a `let` of it does (PanicSense.isTransform)
+    const argTaint = args.map((a) => (sense.isConstExpr(a) || sense.isTransform(a) ? 0 : sense.taintOf(a)));
     const argGe = sense.argLowerBounds(n, args);
     let fe = f;
     if (f.type === "generic_function") fe = f.childForFieldName("function") ?? f;
