@@ -411,6 +411,10 @@ function fnRel(fn: FnDecl): Related {
   return { range: fn.nameRange, message: `\`${fn.name}\`` };
 }
 
+/** Comment text that documents a transfer of ownership to the callee (common practice in C API
+ * comments): "takes ownership", "owned by", "will be freed together with", "must not be freed". */
+const TRANSFER_DOC = /\b(takes?\s+(full\s+|over\s+)?ownership|ownership\s+(is\s+)?(passes|passed|transferred|moves|moved)|owned\s+by|(will\s+be|is|gets)\s+freed\s+(automatically|together|with|by|when|along)|(must|should|do|does)\s+not\s+(be\s+)?free(d)?|consumes\s+(the|its|this))\b/i;
+
 function cProtoOf(model: Model, symbol: string): FnDecl | undefined {
   const g = model.symbols.get(symbol);
   return g?.c.find((f) => f.role === "proto" && f.inHeader) ?? g?.c.find((f) => f.role === "proto") ?? g?.c[0];
@@ -453,7 +457,11 @@ function checkRust(model: Model, om: OwnershipModel, out: Finding[]): void {
       }
       const o = own(r.fn)!;
       const makesNew = om.ctors.has(r.fn.symbol);
-      if (!OWNER_NAME.test(r.fn.name) && !makesNew) {
+      // a Box parameter put in ManuallyDrop / mem::forget / Box::into_raw is not freed on return;
+      // a comment on either side that says the call takes the object over is a documented transfer
+      const kept = r.byParam && o.reLeaks.some((l) => l.ident === pname);
+      const documented = TRANSFER_DOC.test(`${r.fn.doc ?? ""}\n${cProtoOf(model, r.fn.symbol)?.doc ?? ""}`);
+      if (!OWNER_NAME.test(r.fn.name) && !makesNew && !kept && !documented) {
         const borrowsToo = o.borrows.length > 0;
         out.push(finding(BORROWER_RELEASES, r.site,
           `\`${r.fn.symbol}\` looks like a method on the handle${borrowsToo ? " (it also borrows)" : ""} but takes ownership of \`${pname}\`${r.chain.length ? ` (in \`${r.chain.join("` → `")}\`)` : ""}: the handle is freed when it returns while the caller still holds it`,
