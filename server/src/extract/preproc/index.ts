@@ -196,6 +196,19 @@ function lineEnd(text: string, at: number): number {
   return n;
 }
 
+/**
+ * `#ifdef __cplusplus` (or `#if defined(__cplusplus)`, `#if __cplusplus`) whose whole body, up
+ * to an `#endif`, is `extern "C" {` or `}`: one half of the extern "C" guard of a C header.
+ */
+function isCxxGuard(name: string, args: Tok[], body: Tok[], next: Directive | undefined): boolean {
+  if (next?.toks[0]?.t !== "endif") return false;
+  const cond = args.map((t) => t.t).join(" ");
+  const aboutCxx = name === "ifdef" ? cond === "__cplusplus" : name === "if" && /^(?:defined \( __cplusplus \)|defined __cplusplus|__cplusplus)$/.test(cond);
+  if (!aboutCxx) return false;
+  const b = body.map((t) => t.t).join(" ");
+  return b === 'extern "C" {' || b === "}";
+}
+
 interface Frame {
   /** The enclosing region is live. */
   outer: boolean;
@@ -270,7 +283,7 @@ class Run {
       if (d && d.at === i) {
         di++;
         i = d.at + 1 + d.toks.length;
-        this.directive(file, text, d, dirs[di], stack, emit, cond, blank, closeBranch);
+        this.directive(file, text, d, dirs[di], stack, emit, cond, blank, closeBranch, toks);
         continue;
       }
       if (!emit || !this.live(stack)) {
@@ -292,6 +305,7 @@ class Run {
   private directive(
     file: string, text: string, d: Directive, nextDir: Directive | undefined, stack: Frame[], emit: boolean,
     cond: (ts: Tok[]) => boolean | undefined, blank: (s: number, e: number) => void, closeBranch: (f: Frame, next: number) => void,
+    toks: Tok[],
   ): void {
     const name = d.toks[0]?.t ?? "";
     const args = d.toks.slice(1);
@@ -314,6 +328,10 @@ class Run {
               if (name === "ifndef" && v === undefined && !this.table.targetDependent.has(id) && nextDir?.toks[0]?.t === "define" && nextDir.toks[1]?.t === id) v = true;
             }
           }
+          // the extern "C" guard idiom (common practice): `#ifdef __cplusplus` / `extern "C" {` /
+          // `#endif` and its closing `}` twin. A header is read for C and C++ includers alike;
+          // the guard's body only matters to C++, so it is read as a C++ compiler sees it.
+          if (v === undefined && this.kind === "header" && isCxxGuard(name, args, toks.slice(d.at + 1 + d.toks.length, nextDir?.at ?? d.at), nextDir)) v = true;
           f.mode = v === undefined ? "maybe" : v ? "on" : "off";
           if (v === undefined) f.kept = true;
           if (v === true) f.done = true;
