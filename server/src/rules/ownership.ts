@@ -1138,6 +1138,24 @@ function checkClasses(model: Model, om: OwnershipModel, ci: CIndex, out: Finding
         continue;
       }
       if (!rel.inDtor) continue;
+      // A member function that releases the handle and leaves the field holding it: the
+      // destructor releases it again when that function ran first (double release on two paths).
+      if (dtor) {
+        const inDtor = releasedFields(ci, om, name, dtor, fields).get(f.name);
+        for (const fl of flows) {
+          if (fl === dtor || fl.state !== "user" || (fl.member && fl.member !== "method")) continue;
+          const r = releasedFields(ci, om, name, fl, fields).get(f.name);
+          if (!inDtor || !r) continue;
+          const cleared = fl.events.some((e) => (e.k === "assign" && keyOf(e.lhs, fl, fields) === `this.${f.name}` && !before(e.range, r.range)) ||
+            (e.k === "swap" && [e.a, e.b].some((x) => keyOf(x, fl, fields) === `this.${f.name}`)) ||
+            (e.k === "reset" && keyOf(e.obj, fl, fields) === `this.${f.name}`));
+          if (cleared) continue;
+          out.push(finding(USE_AFTER_RELEASE, r.range,
+            `\`${name}::${fl.name}\` releases \`${f.name}\` (\`${r.by}\`) but leaves the field holding it: the destructor releases it again when \`${fl.name}\` ran first (double release); set \`${f.name}\` to nullptr after the release`,
+            [{ range: inDtor.range, message: `the destructor releases \`${f.name}\` here` }],
+            { data: { cls: name, field: f.name, member: fl.name } }));
+        }
+      }
       // Copyability (C++ [class.copy.ctor]/6, [class.copy.assign]/2): an implicit copy member is
       // deleted when the class declares a move constructor or move assignment.
       const has = (k: string) => members.filter((m) => m.kind === k);
