@@ -638,11 +638,27 @@ function checkPanics(model: Model, out: Finding[]): void {
       // an assert whose bounds on the parameters the caller's guards already give
       !(p.needs && given && p.needs.every((nd) => (given[nd.param] ?? -Infinity) >= nd.ge)))
       .map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
-  /** The callee's parameters that carry C's values: those whose argument reads an active one. */
+  /** The callee's parameters that carry C's values: those whose argument reads an active one.
+   * A pointer cast to a Rust struct no C file declares (`file.cast::<GzState>()`) carries none:
+   * C cannot know that struct's members, so what they hold is what the crate put there. */
   const passOn = (c: RustCall, active: number): number => {
     let m = 0;
-    (c.argTaint ?? []).forEach((t, j) => { if (j < 30 && (t & active)) m |= 1 << j; });
+    const off = c.method ? 1 : 0;
+    (c.argTaint ?? []).forEach((t, j) => {
+      const cast = c.args[j + off]?.cast;
+      if (cast && crateOnly(cast)) return;
+      if (j < 30 && (t & active)) m |= 1 << j;
+    });
     return m;
+  };
+  const crateOnlyMemo = new Map<string, boolean>();
+  const crateOnly = (name: string): boolean => {
+    let v = crateOnlyMemo.get(name);
+    if (v === undefined) {
+      v = model.typeDecls(name, "rust").some((d) => d.kind === "struct") && model.typeDecls(name, "c").length === 0;
+      crateOnlyMemo.set(name, v);
+    }
+    return v;
   };
   type Hit = { chain: FnDecl[]; site: Site };
   const memo = new Map<string, Hit | null>();

@@ -89,3 +89,20 @@ pub unsafe extern "C" fn seis_bytes_free(p: *mut u8, len: usize) {
     }
     release_bytes(p, len);
 }
+
+/// The public part of a file handle C sees and may write.
+#[repr(C)]
+pub struct seis_file_s {
+    have: u32,
+}
+pub type seis_file = *mut seis_file_s;
+
+/// `have` is C's to write: the length passed on is C's value.
+#[no_mangle]
+pub unsafe extern "C" fn seis_file_close(file: seis_file) -> c_int {
+    if file.is_null() {
+        return -1;
+    }
+    release_bytes(file.cast::<u8>(), (*file).have as usize);
+    0
+}

@@ -18,4 +18,8 @@ int seis_grid_stack(const seis_grid *grid, float *out, size_t out_len);
 int seis_take_packet(const uint8_t **data, size_t *len);
 void seis_bytes_free(uint8_t *p, size_t len);
 
+/* A file handle: C sees the public part at the front of the crate's own state. */
+typedef struct seis_file_s { unsigned have; } *seis_file;
+int seis_file_close(seis_file file);
+
 #endif

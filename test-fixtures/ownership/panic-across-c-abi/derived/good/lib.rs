@@ -126,3 +126,38 @@ pub unsafe extern "C" fn seis_label_free(label: *mut c_char) {
     }
     release_bytes(label.cast(), strlen(label) + 1);
 }
+
+/// The public part of a file handle C sees, at the front of the crate's own state.
+#[repr(C)]
+pub struct seis_file_s {
+    have: u32,
+}
+pub type seis_file = *mut seis_file_s;
+
+#[repr(C)]
+struct FileState {
+    public: seis_file_s,
+    want: usize,
+    buf: *mut u8,
+}
+
+unsafe fn release_state(state: *mut FileState) {
+    if state.is_null() {
+        return;
+    }
+    let s = &mut *state;
+    if !s.buf.is_null() {
+        release_bytes(s.buf, s.want);
+    }
+    drop(Box::from_raw(state));
+}
+
+/// C cannot see `FileState`: `want` is what the crate's open function put there.
+#[no_mangle]
+pub unsafe extern "C" fn seis_file_close(file: seis_file) -> c_int {
+    if file.is_null() {
+        return -1;
+    }
+    release_state(file.cast::<FileState>());
+    0
+}
