@@ -10,7 +10,7 @@ import { cFileExtractors } from "./hooks.js";
 const C_VISITED = [
   "preproc_include", "preproc_def", "preproc_call", "function_definition", "declaration", "field_declaration", "type_definition",
   "struct_specifier", "union_specifier", "enum_specifier", "call_expression", "static_assert_declaration", "class_specifier",
-  "template_declaration", "compound_statement",
+  "template_declaration", "compound_statement", "namespace_definition",
 ];
 
 const HEADER_RE = /\.(h|hpp|hh|hxx)$/i;
@@ -308,6 +308,10 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
       case "template_declaration":
         if (lang === "cpp") facts.cxxSyntax = true;
         return false;
+      case "namespace_definition":
+        // only C++ reads a namespace (its functions have mangled names); its items are read on
+        if (lang === "cpp") facts.cxxSyntax = true;
+        return;
       case "compound_statement":
         return false;
     }

@@ -92,6 +92,7 @@ function outsideProto(model: Model, p: FnDecl): boolean {
   if (rel.slice(0, -1).some((d) => VENDOR_DIRS.has(d.toLowerCase()))) return true;
   if (!model.config.project?.hasAsm) return false;
   if (model.variantOf(p.file) || ISA_SUFFIX.test(p.name)) return true;
+  if (model.config.project.asmNames?.has(p.name)) return true; // named in an assembly source
   const facts = model.files.get(p.file);
   return !(facts?.fns ?? []).some((x) => {
     if (x.role !== "proto") return false;
@@ -200,6 +201,7 @@ export const symbolsFamily: RuleFamily = {
           // A function Rust imports is expected to live in a C library, possibly outside the workspace.
           if (!p.inHeader || imports.length) continue;
           if (outsideProto(model, p)) continue;
+          if (cxxOnly(model, p)) continue;
           if (macros.length) {
             const [m] = macros;
             out.push(finding(MACRO_MAY_DEFINE, p.nameRange, m!.c
@@ -233,3 +235,20 @@ export const symbolsFamily: RuleFamily = {
     return out;
   },
 };
+
+const CXX_SOURCE = /\.(cc|cpp|cxx|c\+\+|mm)$/i;
+const SOURCE = /\.(c|cc|cpp|cxx|c\+\+|m|mm)$/i;
+
+/**
+ * A prototype without C linkage that only C++ sees: in a header with C++ syntax (a class, a
+ * namespace), or one that only C++ translation units include. Its symbol is a mangled C++ name
+ * (C++ [dcl.link]), which no Rust export provides and no Rust import names: a C++ program's own
+ * declaration, not a seam function (whether C++ defines it is the C++ linker's business).
+ */
+function cxxOnly(model: Model, p: FnDecl): boolean {
+  if (p.cLinkage) return false;
+  const f = model.files.get(p.file);
+  if (f?.lang === "cpp" && f.cxxSyntax) return true;
+  const tus = model.includersOf(p.file).filter((x) => SOURCE.test(x));
+  return tus.length > 0 && tus.every((x) => CXX_SOURCE.test(x));
+}

@@ -40,6 +40,8 @@ export interface PreprocEnv {
   readInclude?: (from: string, path: string, system: boolean) => IncludeSource | undefined;
   /** The C standard's reading of conditions (unknown names are 0), as a compiler would. */
   strict?: boolean;
+  /** Read a header as a C++ translation unit includes it (`__cplusplus` defined). */
+  asCxx?: boolean;
 }
 
 export interface PreprocResult {
@@ -561,15 +563,15 @@ interface Seg {
 
 /** Preprocesses one file (never throws on bad input; an internal limit leaves the text as is). */
 export function preprocess(file: string, text: string, env: PreprocEnv): PreprocResult {
-  const run = new Run(env, langKindOf(file));
+  const run = new Run(env, env.asCxx ? "cpp" : langKindOf(file));
   if (!hasDirective(text) && ![...run.table.map.keys()].some((k) => text.includes(k))) {
     // no directive (so no include and no #define) and no predefined or configured macro named:
     // nothing to expand, and no token stream to build
-    return { text, changed: false, mapCol: (_l, c) => c, reads: [], envKey: quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, []])), ambiguous: [], undecided: [], expansions: 0 };
+    return { text, changed: false, mapCol: (_l, c) => c, reads: [], envKey: quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, !!env.asCxx, []])), ambiguous: [], undecided: [], expansions: 0 };
   }
   run.included.add(file);
   run.file(file, text, scanCached(text), true);
-  const envKey = quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, run.readKeys]));
+  const envKey = quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, !!env.asCxx, run.readKeys]));
   const edits = run.edits.sort((a, b) => a.s - b.s);
   const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], undecided: run.undecided, expansions: run.expansions };
   if (edits.length === 0) return { text, changed: false, mapCol: (_l, c) => c, ...base };
