@@ -232,6 +232,15 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     }
     if (pp) {
       facts.extra.preproc = { envKey: pp.envKey, reads: pp.reads };
+      if (pp.regions.length) {
+        // members under a condition only some targets meet (`#ifdef __LP64__`): kept with it
+        for (const t of facts.types) {
+          for (const fd of t.fields) {
+            const cs = pp.regions.filter((r) => r.line <= fd.range.line && fd.range.line <= r.endLine).map((r) => `(${r.cond})`);
+            if (cs.length) fd.ppCond = cs.join(" && ");
+          }
+        }
+      }
       if (pp.undecided.length) {
         // uses of a macro whose definition ferrule cannot decide: the names they may define
         const starts = lineStarts(text);

@@ -1,10 +1,10 @@
 // The boundary model: every file's facts linked into one view of the seam. Built from FileFacts
 // only (no file reads), so it is cheap to rebuild after a one-file change.
 
-import type { AbiType, FileFacts, FnDecl, IncludeRef, MacroItem, TypeDecl } from "./types.js";
+import type { AbiType, Field, FileFacts, FnDecl, IncludeRef, MacroItem, TypeDecl } from "./types.js";
 import { ALL_TRIPLES, type Triple } from "./targets.js";
 import { IncludeIndex } from "./includes.js";
-import { allOf, canHold, envsFor, type Cond, type CondEnv } from "./conditions.js";
+import { allOf, canHold, envsFor, ppCondOn, type Cond, type CondEnv } from "./conditions.js";
 import { archVariant, type FileUnit, type ProjectInfo } from "./project.js";
 
 export type Side = "rust" | "c";
@@ -172,6 +172,23 @@ export class Model {
   /** What the project knows of a file (undefined without build files). */
   fileUnit(file: string): FileUnit | undefined {
     return this.config.project?.files.get(file);
+  }
+
+  /**
+   * Whether a member of an aggregate exists on one target: a Rust field's `#[cfg]` (with the
+   * package's features, on that target) and a C member's undecided `#if` branch (decided with
+   * that target's predefined macros and the configured defines). Undecidable: kept.
+   */
+  memberOn(d: TypeDecl, f: Field, triple: Triple): boolean {
+    if (f.cfg) {
+      const env = this.envsOf(d.file).find((e) => e.triple === triple);
+      if (env && !canHold([this.condOf(d), f.cfg], [env])) return false;
+    }
+    if (f.ppCond) {
+      const defs = { ...(this.config.project?.defines ?? {}), ...(this.config.project?.files.get(d.file)?.defines ?? {}) };
+      if (ppCondOn(f.ppCond, triple, defs) === false) return false;
+    }
+    return true;
   }
 
   /** The link units a file is compiled into (see model/project.ts). */

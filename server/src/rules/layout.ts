@@ -20,7 +20,7 @@
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range, SourceAssert, TypeDecl } from "../model/types.js";
-import { declLayout, layoutOf, spellType, type FieldLayout, type Layout } from "../model/layout.js";
+import { declLayout, fieldsOn, layoutOf, spellType, type FieldLayout, type Layout } from "../model/layout.js";
 import { compareOn } from "../model/compare.js";
 import { C_SPELLING, RUST_SPELLING, scalarInfo, shortTriple, type ScalarKind, type Triple } from "../model/targets.js";
 import { finding, targetPhrase, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
@@ -409,10 +409,11 @@ function leaves(model: Model, t: AbiType, side: "rust" | "c", triple: Triple, ba
     out.push({ o: base, size: l.size, cls: "union" });
     return true;
   }
-  if (d.kind !== "struct" || !l.fields || d.fields.some((f) => f.bits !== undefined)) return false;
-  for (let i = 0; i < d.fields.length; i++) {
+  const fs = fieldsOn(d, { model, triple });
+  if (d.kind !== "struct" || !l.fields || fs.some((f) => f.bits !== undefined)) return false;
+  for (let i = 0; i < fs.length; i++) {
     const fl = l.fields[i];
-    if (!fl || !leaves(model, d.fields[i]!.type, side, triple, base + fl.offset, out, d.file, depth + 1)) return false;
+    if (!fl || !leaves(model, fs[i]!.type, side, triple, base + fl.offset, out, d.file, depth + 1)) return false;
   }
   return true;
 }
@@ -455,8 +456,8 @@ function diffOn(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): Field
 }
 
 function diffFields(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): FieldDiff | undefined {
-  const rf = p.rust.fields;
-  const cf = p.c.fields;
+  const rf = fieldsOn(p.rust, { model, triple: t });
+  const cf = fieldsOn(p.c, { model, triple: t });
   const bits = cf.some((f) => f.bits !== undefined);
   const n = Math.min(rf.length, cf.length);
   if (!bits) {

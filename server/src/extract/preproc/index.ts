@@ -60,6 +60,9 @@ export interface PreprocResult {
   /** Unexpanded uses of such macros: the identifiers each candidate definition would make. */
   undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[];
   expansions: number;
+  /** Lines of the file inside undecided conditional branches, with each branch's condition as
+   * a C expression (`defined(__LP64__)`, `!(defined(__LP64__))`): 0-based, inclusive. */
+  regions: { line: number; endLine: number; cond: string }[];
 }
 
 type LangKind = "c" | "cpp" | "header";
@@ -202,6 +205,11 @@ function lineEnd(text: string, at: number): number {
  * `#ifdef __cplusplus` (or `#if defined(__cplusplus)`, `#if __cplusplus`) whose whole body, up
  * to an `#endif`, is `extern "C" {` or `}`: one half of the extern "C" guard of a C header.
  */
+/** A directive's condition as text (tokens joined by spaces; re-tokenizes to the same tokens). */
+function spellCond(args: Tok[]): string {
+  return args.map((t) => t.t).join(" ") || "0";
+}
+
 function isCxxGuard(name: string, args: Tok[], body: Tok[], next: Directive | undefined): boolean {
   if (next?.toks[0]?.t !== "endif") return false;
   const cond = args.map((t) => t.t).join(" ");
@@ -224,6 +232,10 @@ interface Frame {
   lines: [number, number][];
   /** Where the current branch's body starts (end of its directive line). */
   bodyStart: number;
+  /** Conditions of the group's branches so far, as C expressions (for undecided regions). */
+  conds?: string[];
+  /** The current branch's own condition when it is undecided. */
+  cur?: string;
 }
 
 interface Edit {
@@ -246,6 +258,8 @@ class Run {
   /** Uses of a macro ferrule could not decide, with the names each candidate definition makes. */
   readonly undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[] = [];
   expansions = 0;
+  readonly regions: { line: number; endLine: number; cond: string }[] = [];
+  private startsOf: { text: string; arr: number[] } | undefined;
   private depth = 0;
 
   constructor(readonly env: PreprocEnv, readonly kind: LangKind) {
@@ -304,6 +318,25 @@ class Run {
     }
   }
 
+  /** Records the lines of an undecided branch (the main file only), ending where `end` starts. */
+  private region(_file: string, text: string, f: Frame, end: number, emit: boolean): void {
+    if (!emit || !f.outer || f.mode !== "maybe" || !f.cur || this.regions.length > 10_000) return;
+    if (this.startsOf?.text !== text) {
+      const arr = [0];
+      for (let k = text.indexOf("\n"); k >= 0; k = text.indexOf("\n", k + 1)) arr.push(k + 1);
+      this.startsOf = { text, arr };
+    }
+    const arr = this.startsOf.arr;
+    const lineAt = (o: number) => {
+      let lo = 0, hi = arr.length - 1;
+      while (lo < hi) { const mid = (lo + hi + 1) >> 1; if (arr[mid]! <= o) lo = mid; else hi = mid - 1; }
+      return lo;
+    };
+    const a = lineAt(f.bodyStart) + 1;
+    const b = lineAt(end) - 1;
+    if (b >= a) this.regions.push({ line: a, endLine: b, cond: f.cur });
+  }
+
   private directive(
     file: string, text: string, d: Directive, nextDir: Directive | undefined, stack: Frame[], emit: boolean,
     cond: (ts: Tok[]) => boolean | undefined, blank: (s: number, e: number) => void, closeBranch: (f: Frame, next: number) => void,
@@ -338,6 +371,9 @@ class Run {
           if (v === undefined) f.kept = true;
           if (v === true) f.done = true;
         }
+        const own = name === "if" ? spellCond(args) : `${name === "ifndef" ? "!" : ""}defined(${args[0]?.t ?? "_"})`;
+        f.conds = [own];
+        if (f.mode === "maybe") f.cur = own;
         stack.push(f);
         return;
       }
@@ -348,6 +384,7 @@ class Run {
         const f = stack[stack.length - 1];
         if (!f) return;
         closeBranch(f, d.s);
+        this.region(file, text, f, d.s, emit);
         f.lines.push([d.s, d.e]);
         f.bodyStart = d.e;
         if (!f.outer) return;
@@ -365,12 +402,19 @@ class Run {
         f.mode = v === undefined ? "maybe" : v ? "on" : "off";
         if (v === undefined) f.kept = true;
         if (v === true) f.done = true;
+        {
+          const own = name === "else" ? "1" : name === "elif" ? spellCond(args) : `${name === "elifndef" ? "!" : ""}defined(${args[0]?.t ?? "_"})`;
+          const prior = (f.conds ?? []).map((c) => `!(${c})`);
+          f.cur = f.mode === "maybe" ? [...prior, `(${own})`].join(" && ") : undefined;
+          (f.conds ??= []).push(own);
+        }
         return;
       }
       case "endif": {
         const f = stack.pop();
         if (!f) return;
         closeBranch(f, d.s);
+        this.region(file, text, f, d.s, emit);
         f.lines.push([d.s, d.e]);
         if (f.outer && !f.kept && emit) for (const [s, e] of f.lines) blank(s, e);
         return;
@@ -567,13 +611,13 @@ export function preprocess(file: string, text: string, env: PreprocEnv): Preproc
   if (!hasDirective(text) && ![...run.table.map.keys()].some((k) => text.includes(k))) {
     // no directive (so no include and no #define) and no predefined or configured macro named:
     // nothing to expand, and no token stream to build
-    return { text, changed: false, mapCol: (_l, c) => c, reads: [], envKey: quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, !!env.asCxx, []])), ambiguous: [], undecided: [], expansions: 0 };
+    return { text, changed: false, mapCol: (_l, c) => c, reads: [], envKey: quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, !!env.asCxx, []])), ambiguous: [], undecided: [], expansions: 0, regions: [] };
   }
   run.included.add(file);
   run.file(file, text, scanCached(text), true);
   const envKey = quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, !!env.asCxx, run.readKeys]));
   const edits = run.edits.sort((a, b) => a.s - b.s);
-  const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], undecided: run.undecided, expansions: run.expansions };
+  const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], undecided: run.undecided, expansions: run.expansions, regions: run.regions };
   if (edits.length === 0) return { text, changed: false, mapCol: (_l, c) => c, ...base };
   const parts: string[] = [];
   const segs = new Map<number, Seg[]>();
