@@ -16,7 +16,10 @@
 //   two names, C11 6.7.2.3 / 6.7.8);
 // - the Rust port's own `QuakePicker` state against the C original's `struct quake_picker_s`,
 //   which the header leaves opaque: each implementation's private state;
-// - quake.h has a second extern "C" section under a build option.
+// - quake.h has a second extern "C" section under a build option;
+// - csrc/picker_internal.h keeps a prototype nothing defines or calls, in a header whose other
+//   functions C defines: a stale declaration, reported as info (the link only fails once
+//   something calls it). The same in the Rust crate's API header stays a warning (bad twin).
 // The compilers read the same files: gcc -fsyntax-only on every C file, g++ on the header,
 // rustc on the crate.
 import { describe, expect, test, beforeAll } from "vitest";
@@ -65,8 +68,11 @@ describe("a C original beside its Rust port", () => {
     }
   });
 
-  test("good: no finding at error or warning", () => {
+  test("good: no finding at error or warning; the C original's stale prototype is info", () => {
     expect(check(GOOD)).toEqual([]);
+    const r = spawnSync(process.execPath, [BIN, "check", "--format", "json", "."], { cwd: GOOD, encoding: "utf8", timeout: 120_000 });
+    const infos = JSON.parse(r.stdout).findings.filter((f: { severity: string }) => f.severity === "info").map((f: { file: string; line: number; rule: string }) => `${f.file}:${f.line} ${f.rule}`);
+    expect(infos).toContain("csrc/picker_internal.h:8 declaration-without-definition");
   });
 
   test("bad: exactly the planted slips", () => {
@@ -74,6 +80,7 @@ describe("a C original beside its Rust port", () => {
       "csrc/picker_simd.c:6 duplicate-symbol", // two C backends in one library folder
       "fuzz/fuzz_run.c:9 item-size-mismatch", // a u32 histogram cast to the API's u16 bins
       "include/quake.h:25 param-type-mismatch", // the newtype is u8, the C enum int-sized
+      "include/quake.h:29 declaration-without-definition", // the Rust crate's API header promises it
       "src/lib.rs:18 mirror-layout-mismatch", // `on: f64` where C has float
       "src/lib.rs:8 mirror-enum-mismatch",
     ]);

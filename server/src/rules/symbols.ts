@@ -210,6 +210,12 @@ export const symbolsFamily: RuleFamily = {
               macros.map((x) => ({ range: x.range, message: x.c ? `\`${x.macro}(…)\` use that may define \`${p.name}\`` : `\`${x.macro}!\` invocation naming \`${p.name}\`` })), { data: { fn: p.id } }));
             continue;
           }
+          if (staleInCLibrary(model, p)) {
+            const f = finding(NO_DEFINITION, p.nameRange, `\`${p.name}\` is declared here but nothing in the workspace defines or calls it: an unused declaration of a C library whose other functions are defined in C (a link fails only once something calls it)`, [], { data: { fn: p.id } });
+            f.severity = "info";
+            out.push(f);
+            continue;
+          }
           out.push(finding(NO_DEFINITION, p.nameRange, `\`${p.name}\` is declared here but neither a Rust export nor a C/C++ definition in the workspace provides it`, [], { data: { fn: p.id } }));
         }
         if (hasC) {
@@ -251,4 +257,38 @@ function cxxOnly(model: Model, p: FnDecl): boolean {
   if (f?.lang === "cpp" && f.cxxSyntax) return true;
   const tus = model.includersOf(p.file).filter((x) => SOURCE.test(x));
   return tus.length > 0 && tus.every((x) => CXX_SOURCE.test(x));
+}
+
+const calledCache = new WeakMap<Model, Set<string>>();
+
+/** Names called from any C/C++ function body of the workspace. */
+function calledNames(model: Model): Set<string> {
+  let hit = calledCache.get(model);
+  if (!hit) {
+    hit = new Set();
+    for (const f of model.files.values()) for (const c of f.calls) if (!c.recv) hit.add(c.callee.split("::").pop()!);
+    calledCache.set(model, hit);
+  }
+  return hit;
+}
+
+/**
+ * A declaration nobody defines or calls, in a header whose other functions C code defines (a C
+ * library's header, not a Rust crate's API header): a stale prototype — nothing fails to link
+ * until something calls it. A header whose functions Rust exports is an API promise to callers
+ * outside the workspace, so a missing definition there stays a warning.
+ */
+function staleInCLibrary(model: Model, p: FnDecl): boolean {
+  if (calledNames(model).has(p.name)) return false;
+  const facts = model.files.get(p.file);
+  if (!facts) return false;
+  let byC = 0, byRust = 0;
+  for (const q of facts.fns) {
+    if (q === p || q.role !== "proto") continue;
+    const g = model.symbols.get(q.symbol);
+    if (!g) continue;
+    if (g.rust.some((r) => r.role === "export")) byRust++;
+    else if (g.c.some((d) => d.role === "def")) byC++;
+  }
+  return byC > 0 && byC > byRust;
 }

@@ -25,6 +25,8 @@ typedef uint16_t quake_bin;   /* histogram bin */
 quake_picker *quake_picker_new(quake_mode mode, const QuakeThreshold *thr);
 size_t quake_picker_run(quake_picker *p, const float *samples, size_t n, quake_bin *hist);
 void quake_picker_free(quake_picker *p);
+/* declared for the block code, but the Rust port never exported it */
+size_t quake_picker_reset(quake_picker *p);
 
 #if defined (__cplusplus)
 }
