@@ -504,7 +504,10 @@ class Run {
     // (one candidate under an undecided condition; several are taken as the branches of one
     // #if/#else, which define it either way)
     const entry = this.table.map.get(first.t);
-    if (entry?.maybeUndef && entry.defs.length === 1) keepsName = true;
+    // (an object-like renaming macro — zlib's `#define gzopen gzopen64` under one option, `#define
+    // gzopen z_gzopen` under another — may be undefined under a third: the name itself stays one
+    // of the readings; a function-like macro's name is no declarator name when it is undefined)
+    if (entry?.maybeUndef && (entry.defs.length === 1 || entry.defs.every((d) => !d.params))) keepsName = true;
     let tables = variants(first.t);
     if (this.table.map.get(first.t)?.defs.length === 1 && !this.table.map.get(first.t)!.maybeUndef) {
       let inner: string | undefined;
