@@ -8,8 +8,9 @@
 import { readFileSync, statSync } from "node:fs";
 import { dirname, join } from "node:path";
 import { extractFile } from "../extract/index.js";
-import { Model } from "../model/boundary.js";
-import { declLayout, type Layout } from "../model/layout.js";
+import { Model, type SystemFacts, type SystemLayout } from "../model/boundary.js";
+export type { SystemFacts, SystemLayout };
+import { declLayout } from "../model/layout.js";
 import type { FileFacts } from "../model/types.js";
 import type { Triple } from "../model/targets.js";
 
@@ -36,16 +37,6 @@ export const SYSTEM_DIRS: Readonly<Partial<Record<Triple, string[]>>> = {
   "armv7-unknown-linux-gnueabihf": ["/usr/arm-linux-gnueabihf/include"],
   "i686-unknown-linux-gnu": ["/usr/i686-linux-gnu/include"],
 };
-
-/** One system struct's layout on one target, with where it came from. */
-export interface SystemLayout {
-  header: string;
-  file: string;
-  layout: Layout;
-}
-
-/** name → target → layout (absent when the target's headers are not installed). */
-export type SystemFacts = Map<string, Partial<Record<Triple, SystemLayout>>>;
 
 const MAX_HEADER = 2_000_000;
 
