@@ -46,7 +46,11 @@ function difference(rust: Layout, sys: Layout, name: string): string | undefined
       return `field ${i + 1} \`${r.name}\` is ${r.size} bytes at offset ${r.offset}, the header's \`${s.name}\` is ${s.size} bytes at offset ${s.offset}`;
     }
   }
-  if (rf.length !== sf.length) return `it has ${rf.length} fields, the header's \`struct ${name}\` has ${sf.length}`;
+  // Same fields as far as both go, one side longer: kernel UAPI structs grow at their end between
+  // kernel versions (the `argsz` convention of VFIO and others: the caller says how many bytes it
+  // knows, common practice), so a mirror from a newer or older kernel than the installed headers
+  // is not a slip ferrule can tell.
+  if (rf.length !== sf.length) return undefined;
   if (rust.size !== sys.size) return `it is ${rust.size} bytes, the header's \`struct ${name}\` is ${sys.size}`;
   // An alignment difference alone is left out: with equal offsets and size the kernel reads and
   // writes the same bytes (x86's packed epoll_event is 1-aligned, an unpacked i686 mirror with the

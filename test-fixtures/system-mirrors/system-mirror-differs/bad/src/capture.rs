@@ -28,3 +28,14 @@ extern "C" {
 pub fn wait_blocks(epfd: c_int, ready: &mut [epoll_event; 8]) -> c_int {
     unsafe { epoll_wait(epfd, ready.as_mut_ptr(), 8, 250) }
 }
+
+/// Mirror of `struct vfio_region_info` with `index` widened: every later field moves.
+#[repr(C)]
+pub struct vfio_region_info { // expect: system-mirror-differs
+    pub argsz: u32,
+    pub flags: u32,
+    pub index: u64,
+    pub cap_offset: u32,
+    pub size: u64,
+    pub offset: u64,
+}

@@ -37,3 +37,15 @@ extern "C" {
 pub fn wait_blocks(epfd: c_int, ready: &mut [epoll_event; 8]) -> c_int {
     unsafe { epoll_wait(epfd, ready.as_mut_ptr(), 8, 250) }
 }
+
+/// Mirror of `struct vfio_device_info` from a newer kernel than the build machine's headers: the
+/// kernel's extensible structs grow at their end, and `argsz` tells it how much the caller knows.
+#[repr(C)]
+pub struct vfio_device_info {
+    pub argsz: u32,
+    pub flags: u32,
+    pub num_regions: u32,
+    pub num_irqs: u32,
+    pub cap_offset: u32,
+    pub pad: u32,
+}
