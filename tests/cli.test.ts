@@ -138,3 +138,13 @@ describe("usage and configuration errors exit 2 with one line", () => {
     expect(r.code).toBe(0); // nothing left at error severity
   });
 });
+
+describe("--version", () => {
+  test("prints the package version and exits 0", () => {
+    const root = path.resolve(__dirname, "..");
+    const pkg = JSON.parse(fs.readFileSync(path.join(root, "package.json"), "utf8"));
+    const r = spawnSync(process.execPath, [path.join(root, "bin", "ferrule.js"), "--version"], { encoding: "utf8" });
+    expect(r.status).toBe(0);
+    expect(r.stdout.trim()).toBe(`ferrule ${pkg.version}`);
+  });
+});

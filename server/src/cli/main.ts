@@ -28,6 +28,7 @@ usage:
                 [--baseline FILE [--update-baseline]] [--fail-on-skip] [PATH...]
   ferrule layout [--target TRIPLE]... [--format json|text] PATH...
   ferrule lsp --stdio
+  ferrule --version
 
 targets: ${ALL_TRIPLES.join(", ")} (also: x86_64, aarch64, armv7, i686, x86_64-windows)
 exit codes: 0 clean, 1 findings at error severity, 2 usage or configuration error
@@ -139,6 +140,10 @@ export interface RunIO {
 export async function run(argv: string[], io: RunIO): Promise<number> {
   let o: Opts;
   try {
+    if (argv[0] === "--version" || argv[0] === "-V" || argv[0] === "version") {
+      io.stdout(`ferrule ${VERSION}\n`);
+      return 0;
+    }
     o = parseArgs(argv);
   } catch (e) {
     if (e instanceof UsageError) {
