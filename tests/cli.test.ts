@@ -164,3 +164,28 @@ describe("text format words and colour", () => {
     expect(words.every((w) => w === "error" || w === "warning" || w === "note")).toBe(true);
   });
 });
+
+describe("SARIF fingerprints", () => {
+  test("survive inserted lines: the same findings keep the same partialFingerprints", () => {
+    const root = path.resolve(__dirname, "..");
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-fp-"));
+    fs.cpSync(path.join(root, "test-fixtures/sonar-demo"), dir, { recursive: true });
+    const run = () => {
+      const r = spawnSync(process.execPath, [path.join(root, "bin", "ferrule.js"), "check", "--format", "sarif", "."], { cwd: dir, encoding: "utf8" });
+      const res = JSON.parse(r.stdout).runs[0].results as { ruleId: string; partialFingerprints: Record<string, string>; locations: { physicalLocation: { region: { startLine: number } } }[] }[];
+      return res;
+    };
+    const before = run();
+    expect(before.length).toBeGreaterThan(3);
+    for (const rel of ["include/sonar_kernels.h", "kernels/src/lib.rs"]) {
+      const f = path.join(dir, rel);
+      fs.writeFileSync(f, "\n\n" + fs.readFileSync(f, "utf8"));
+    }
+    const after = run();
+    const prints = (rs: typeof before) => rs.map((x) => `${x.ruleId}:${x.partialFingerprints["ferruleFinding/v1"]}`).sort();
+    expect(prints(after)).toEqual(prints(before));
+    // the lines did move: the fingerprints are not line-based
+    expect(after.map((x) => x.locations[0]!.physicalLocation.region.startLine)).not.toEqual(before.map((x) => x.locations[0]!.physicalLocation.region.startLine));
+    expect(new Set(prints(before)).size).toBe(before.length);
+  });
+});
