@@ -96,6 +96,9 @@ const KNOWN_BROKEN: Record<string, string> = {
   "signatures/pointer-constness|pointer-constness|Change the C parameter to match Rust: `const float **rows`": "const float ** is still writable at the outer level: new pointer-constness",
   "sonar-demo|param-type-mismatch|Change the C parameter to match Rust: `float *output`": "the C++ caller passes std::vector<double> data: beamformer_block.cc no longer compiles",
   "sonar-demo|callback-mismatch|Change the Rust parameter to match C: `Option<unsafe extern \"C\" fn(*mut core::ffi::c_void, f32)>`": "inline Option<fn> replaces the user's alias; the body's call no longer compiles",
+  "ownership/borrower-takes-ownership|borrower-takes-ownership|Borrow the handle (`&mut *stage`) instead of taking ownership": "the harness reads the transfer/ good and bad twins as one workspace; the borrow edit does not compile in the good twin",
+  "project/quake-port-bad|param-type-mismatch|Change the C parameter to match Rust: `quake_mode mode`": "the slip is the Rust newtype's width (u8): changing the C side keeps the mismatch",
+  "project/quake-port-bad|param-type-mismatch|Change the Rust parameter to match C: `quake_mode`": "replaces the newtype with the C typedef name, which Rust does not have: lib.rs no longer compiles",
 };
 
 test("every offered fix removes its finding, adds none, and builds where the original built", async () => {
