@@ -161,8 +161,56 @@ export function loadFiles(files: string[], opts: ParallelOptions): Promise<Loade
   });
 }
 
+/**
+ * With a facts cache and worker threads, the files whose entries hold are taken here first: a run
+ * over unchanged files then starts no worker (each costs a bundle and three grammars), and one
+ * after a small edit starts workers only when the files left to read are worth them.
+ */
+function cachedFirst(files: string[], opts: Omit<ParallelOptions, "mode">): { hits: Map<number, LoadedFile>; rest: string[] } {
+  const hits = new Map<number, LoadedFile>();
+  const cache = openCache(opts.cache);
+  if (!cache || !opts.script || workerCount(files.length, opts.workers) === 0) return { hits, rest: files };
+  const env = preprocEnv(opts.preproc, opts.maxFileBytes);
+  const rest: string[] = [];
+  files.forEach((file, i) => {
+    let r: LoadedFile | undefined;
+    try {
+      const st = fs.statSync(file);
+      if (st.size <= opts.maxFileBytes * 4 && getRunDeadline() > Date.now()) {
+        const { text, note } = readSource(file);
+        const hash = createHash("sha1").update(text).digest("hex");
+        const hit = cache.get(file, hash, env?.readInclude);
+        if (hit) {
+          if (note) hit.notices.push(encodingNotice(file, note));
+          r = { file, hash, facts: hit, cached: true };
+        }
+      }
+    } catch { /* read (and reported) by the pool */ }
+    if (r) hits.set(i, r);
+    else rest.push(file);
+  });
+  return { hits, rest };
+}
+
 /** Reads and extracts every file into packed form (see analysis/packed.ts); in the order of `files`. */
-export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> & { compress: boolean }): Promise<PackedFile[]> {
+export async function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> & { compress: boolean }): Promise<PackedFile[]> {
+  const { hits, rest } = cachedFirst(files, opts);
+  if (hits.size === 0) return loadPackedAll(files, opts);
+  const read = rest.length ? await loadPackedAll(rest, opts) : [];
+  const pool = new Map<string, string>();
+  let k = 0;
+  return files.map((_f, i) => {
+    const h = hits.get(i);
+    if (!h) return read[k++]!;
+    shareStrings(h.facts, pool);
+    // compressed like the workers' results when the workspace is large (memory bound)
+    const p = packFacts(h.facts, h.hash, opts.compress);
+    p.cached = true;
+    return p;
+  });
+}
+
+function loadPackedAll(files: string[], opts: Omit<ParallelOptions, "mode"> & { compress: boolean }): Promise<PackedFile[]> {
   const pool = new Map<string, string>();
   return runPool<string, PackedFile>(files, {
     mode: "pack",
