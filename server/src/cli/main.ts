@@ -30,6 +30,7 @@ usage:
                 [--cache-dir DIR | --no-cache] [PATH...]
   ferrule layout [--target TRIPLE]... [--format json|text] PATH...
   ferrule lsp --stdio
+  ferrule --version
 
 targets: ${ALL_TRIPLES.join(", ")} (also: x86_64, aarch64, armv7, i686, x86_64-windows)
 facts cache: unchanged files are not read again; default folder $XDG_CACHE_HOME/ferrule or
@@ -131,8 +132,18 @@ export function loadConfig(file: string | undefined, cwd: string, named = false)
     throw new ConfigError(shown, "", `cannot read: ${(e as NodeJS.ErrnoException).code}`);
   }
   const cfg = parseConfigText(text, shown);
-  // include paths are relative to the config file's folder
-  cfg.includePaths = cfg.includePaths.map((p) => path.resolve(path.dirname(file), p));
+  // include paths are relative to the config file's folder; a config the repository holds (found
+  // by walking up, not named with --config) may not point ferrule outside its own folder
+  const home = path.dirname(path.resolve(file));
+  cfg.includePaths = cfg.includePaths.map((p) => path.resolve(home, p));
+  if (!named) {
+    for (const p of cfg.includePaths) {
+      const rel = path.relative(home, p);
+      if (rel.startsWith("..") || path.isAbsolute(rel)) {
+        throw new ConfigError(shown, "include_paths", `\`${p}\` is outside the project folder ${home}; a repository's own config cannot make ferrule read there (name the file with --config, or set the editor's ferrule.includePaths, to allow it)`);
+      }
+    }
+  }
   return cfg;
 }
 
@@ -149,6 +160,10 @@ export interface RunIO {
 export async function run(argv: string[], io: RunIO): Promise<number> {
   let o: Opts;
   try {
+    if (argv[0] === "--version" || argv[0] === "-V" || argv[0] === "version") {
+      io.stdout(`ferrule ${VERSION}\n`);
+      return 0;
+    }
     o = parseArgs(argv);
   } catch (e) {
     if (e instanceof UsageError) {
@@ -273,7 +288,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   phase("findings");
   if (o.format === "json") io.stdout(formatJson(json));
   else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
-  else io.stdout(formatText(json, io.isTTY && !process.env.NO_COLOR) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
+  else io.stdout(formatText(json, useColor(io.isTTY)) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
   return json.some((f) => f.severity === "error") || (o.failOnSkip && skipped.length > 0) ? 1 : 0;
 }
 
@@ -291,4 +306,12 @@ export async function main(): Promise<void> {
     process.stderr.write(`ferrule: internal error: ${(e as Error).stack ?? e}\n`);
     process.exitCode = 2;
   }
+}
+
+/** Colour on a terminal; `NO_COLOR` (any value) turns it off and `FORCE_COLOR` (not "0") turns
+ * it on, the common conventions of command-line tools. */
+export function useColor(tty: boolean, env: NodeJS.ProcessEnv = process.env): boolean {
+  if (env.NO_COLOR !== undefined && env.NO_COLOR !== "") return false;
+  if (env.FORCE_COLOR !== undefined && env.FORCE_COLOR !== "0" && env.FORCE_COLOR !== "false") return true;
+  return tty;
 }
