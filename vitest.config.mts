@@ -1,4 +1,6 @@
 import { defineConfig } from "vitest/config";
+import * as os from "node:os";
+import * as path from "node:path";
 import SummaryReporter from "./tests/support/summary-reporter.js";
 
 export default defineConfig({
@@ -9,6 +11,9 @@ export default defineConfig({
     hookTimeout: 300_000,
     pool: "forks",
     maxWorkers: 2,
+    // the CLI and the language server under test keep their facts cache here, not in the user's
+    // cache folder (every suite then also runs warm against facts an earlier one stored)
+    env: { FERRULE_CACHE_DIR: path.join(os.tmpdir(), `ferrule-test-cache-${process.pid}`) },
     reporters: ["default", new SummaryReporter("vitest")],
   },
 });

@@ -28,6 +28,8 @@ export interface FerruleConfig {
   /** Cargo features the build enables besides each package's defaults (`name` for every package
    * that has it, `package/name` for one). */
   features: string[];
+  /** Size cap of the facts cache folder in MiB (analysis/facts-cache.ts). */
+  cacheMaxMb: number;
 }
 
 export const DEFAULTS: FerruleConfig = {
@@ -41,6 +43,7 @@ export const DEFAULTS: FerruleConfig = {
   severity: {},
   families: {},
   features: [],
+  cacheMaxMb: 200,
 };
 
 export class ConfigError extends Error {
@@ -51,7 +54,7 @@ export class ConfigError extends Error {
 
 const SEVERITIES = ["error", "warning", "info", "hint", "off"];
 /** Top-level settings, and the tables handed to rule families (`[ports]`, `[layout]`). */
-const TOP_KEYS = ["targets", "include_paths", "exclude", "strip_macros", "max_file_bytes", "max_total_seconds", "features", "defines", "rules"];
+const TOP_KEYS = ["targets", "include_paths", "exclude", "strip_macros", "max_file_bytes", "max_total_seconds", "features", "defines", "rules", "cache_max_mb"];
 const FAMILY_TABLES = ["ports", "layout"];
 
 /** ` — did you mean \`x\`?` for a close name (edit distance ≤ 2), else "". */
@@ -141,6 +144,13 @@ export function configFromObject(obj: Record<string, unknown>, file: string, bas
         const n = typeof v === "bigint" ? Number(v) : v;
         if (typeof n !== "number" || !Number.isFinite(n) || n <= 0) throw new ConfigError(file, k, `expected a number of seconds above 0 (got ${typeof v === "string" ? JSON.stringify(v) : String(v)})`);
         cfg.maxTotalSeconds = n;
+        break;
+      }
+      case "cache_max_mb":
+      case "cacheMaxMb": {
+        const n = typeof v === "bigint" ? Number(v) : v;
+        if (typeof n !== "number" || !Number.isFinite(n) || n < 1) throw new ConfigError(file, k, `expected a size in MiB of at least 1 (got ${typeof v === "string" ? JSON.stringify(v) : String(v)})`);
+        cfg.cacheMaxMb = n;
         break;
       }
       case "features": {

@@ -28,6 +28,8 @@ export interface PackedFile {
   /** …or as they are (read in this thread: a workspace too small for worker threads, where
    * packing would cost time and save nothing that matters). */
   facts?: FileFacts;
+  /** The facts came from the facts cache. */
+  cached?: boolean;
 }
 
 export function packFacts(facts: FileFacts, hash: string, compress = true): PackedFile {

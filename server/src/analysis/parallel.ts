@@ -23,6 +23,7 @@ import { IncludeIndex } from "../model/includes.js";
 import { includeReader } from "./include-reader.js";
 import type { PreprocEnv } from "../extract/preproc/index.js";
 import type { Triple } from "../model/targets.js";
+import { FactsCache, type CacheSpec } from "./facts-cache.js";
 
 /** What a worker needs to preprocess: every file of the walk (include resolution), the settings. */
 export interface PreprocData {
@@ -47,6 +48,17 @@ export interface LoadedFile {
   /** SHA-1 of the text ("" when the file was skipped). */
   hash: string;
   facts: FileFacts;
+  /** The facts came from the facts cache (analysis/facts-cache.ts). */
+  cached?: boolean;
+}
+
+let cacheFor: { spec: CacheSpec; cache: FactsCache } | undefined;
+
+/** This thread's handle on the facts cache of `spec` (one per thread, kept across batches). */
+export function openCache(spec: CacheSpec | undefined): FactsCache | undefined {
+  if (!spec) return undefined;
+  if (cacheFor?.spec.dir !== spec.dir || cacheFor.spec.code !== spec.code || cacheFor.spec.settings !== spec.settings) cacheFor = { spec, cache: new FactsCache(spec) };
+  return cacheFor.cache;
 }
 
 /** "extract": facts as objects; "parse": only read and parse (the benchmark's floor); "pack":
@@ -66,6 +78,8 @@ export interface ParallelOptions {
   stripMacros?: readonly string[];
   /** The preprocessor's inputs (without: each file is preprocessed on its own). */
   preproc?: PreprocData;
+  /** The facts cache to read and fill (without: none). */
+  cache?: CacheSpec;
   onProgress?: (done: number, total: number) => void;
 }
 
@@ -73,7 +87,7 @@ const WORKER_TAG = "ferrule-extract-worker";
 const BATCH = 8;
 
 /** Reads one file and extracts its facts; the same outcomes as Workspace.load (never throws). */
-export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract", stripMacros?: readonly string[], preproc?: PreprocData): LoadedFile {
+export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "extract", stripMacros?: readonly string[], preproc?: PreprocData, cacheSpec?: CacheSpec): LoadedFile {
   let text: string;
   let note: string | undefined;
   try {
@@ -93,7 +107,22 @@ export function readFacts(file: string, maxFileBytes: number, mode: WorkMode = "
     } catch { /* the floor only measures parsing */ }
     return { file, hash, facts: emptyFacts(file, lang) };
   }
-  const facts = extractFile(file, text, { maxFileBytes, stripMacros, preproc: preprocEnv(preproc, maxFileBytes) });
+  const env = preprocEnv(preproc, maxFileBytes);
+  const cache = openCache(cacheSpec);
+  if (!cache) {
+    const facts = extractFile(file, text, { maxFileBytes, stripMacros, preproc: env });
+    if (note) facts.notices.push(encodingNotice(file, note));
+    return { file, hash, facts };
+  }
+  // (a run whose time budget is spent skips the file, cached or not, as without a cache)
+  const hit = getRunDeadline() > Date.now() ? cache.get(file, hash, env?.readInclude) : undefined;
+  if (hit) {
+    if (note) hit.notices.push(encodingNotice(file, note));
+    return { file, hash, facts: hit, cached: true };
+  }
+  const traced = cache.tracing(env?.readInclude);
+  const facts = extractFile(file, text, { maxFileBytes, stripMacros, preproc: env ? { ...env, readInclude: traced.read } : env });
+  cache.put(file, hash, facts, traced.trace);
   if (note) facts.notices.push(encodingNotice(file, note));
   return { file, hash, facts };
 }
@@ -125,22 +154,70 @@ export function loadFiles(files: string[], opts: ParallelOptions): Promise<Loade
     mode,
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
-    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, preproc: opts.preproc, runDeadline: getRunDeadline() },
-    local: (f) => readFacts(f, opts.maxFileBytes, mode, opts.stripMacros, opts.preproc),
+    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, preproc: opts.preproc, cache: opts.cache, runDeadline: getRunDeadline() },
+    local: (f) => readFacts(f, opts.maxFileBytes, mode, opts.stripMacros, opts.preproc, opts.cache),
     receive: (r) => shareStrings(r, pool), // one copy of each repeated string (see share-strings.ts)
     onProgress: opts.onProgress,
   });
 }
 
+/**
+ * With a facts cache and worker threads, the files whose entries hold are taken here first: a run
+ * over unchanged files then starts no worker (each costs a bundle and three grammars), and one
+ * after a small edit starts workers only when the files left to read are worth them.
+ */
+function cachedFirst(files: string[], opts: Omit<ParallelOptions, "mode">): { hits: Map<number, LoadedFile>; rest: string[] } {
+  const hits = new Map<number, LoadedFile>();
+  const cache = openCache(opts.cache);
+  if (!cache || !opts.script || workerCount(files.length, opts.workers) === 0) return { hits, rest: files };
+  const env = preprocEnv(opts.preproc, opts.maxFileBytes);
+  const rest: string[] = [];
+  files.forEach((file, i) => {
+    let r: LoadedFile | undefined;
+    try {
+      const st = fs.statSync(file);
+      if (st.size <= opts.maxFileBytes * 4 && getRunDeadline() > Date.now()) {
+        const { text, note } = readSource(file);
+        const hash = createHash("sha1").update(text).digest("hex");
+        const hit = cache.get(file, hash, env?.readInclude);
+        if (hit) {
+          if (note) hit.notices.push(encodingNotice(file, note));
+          r = { file, hash, facts: hit, cached: true };
+        }
+      }
+    } catch { /* read (and reported) by the pool */ }
+    if (r) hits.set(i, r);
+    else rest.push(file);
+  });
+  return { hits, rest };
+}
+
 /** Reads and extracts every file into packed form (see analysis/packed.ts); in the order of `files`. */
-export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> & { compress: boolean }): Promise<PackedFile[]> {
+export async function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> & { compress: boolean }): Promise<PackedFile[]> {
+  const { hits, rest } = cachedFirst(files, opts);
+  if (hits.size === 0) return loadPackedAll(files, opts);
+  const read = rest.length ? await loadPackedAll(rest, opts) : [];
+  const pool = new Map<string, string>();
+  let k = 0;
+  return files.map((_f, i) => {
+    const h = hits.get(i);
+    if (!h) return read[k++]!;
+    shareStrings(h.facts, pool);
+    // compressed like the workers' results when the workspace is large (memory bound)
+    const p = packFacts(h.facts, h.hash, opts.compress);
+    p.cached = true;
+    return p;
+  });
+}
+
+function loadPackedAll(files: string[], opts: Omit<ParallelOptions, "mode"> & { compress: boolean }): Promise<PackedFile[]> {
   const pool = new Map<string, string>();
   return runPool<string, PackedFile>(files, {
     mode: "pack",
     workers: opts.script ? workerCount(files.length, opts.workers) : 0,
     script: opts.script,
-    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress, preproc: opts.preproc, runDeadline: getRunDeadline() },
-    local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false, opts.preproc),
+    data: { maxFileBytes: opts.maxFileBytes, stripMacros: opts.stripMacros ? [...opts.stripMacros] : undefined, compress: opts.compress, preproc: opts.preproc, cache: opts.cache, runDeadline: getRunDeadline() },
+    local: (f) => packOne(f, opts.maxFileBytes, opts.stripMacros, false, opts.preproc, opts.cache),
     // facts sent as they are (a structured clone): one copy of each repeated string
     receive: (r) => {
       if (r.facts) shareStrings(r.facts, pool);
@@ -149,9 +226,11 @@ export function loadPacked(files: string[], opts: Omit<ParallelOptions, "mode"> 
   });
 }
 
-function packOne(file: string, maxFileBytes: number, stripMacros: readonly string[] | undefined, compress: boolean, preproc?: PreprocData): PackedFile {
-  const r = readFacts(file, maxFileBytes, "extract", stripMacros, preproc);
-  return packFacts(r.facts, r.hash, compress);
+function packOne(file: string, maxFileBytes: number, stripMacros: readonly string[] | undefined, compress: boolean, preproc?: PreprocData, cache?: CacheSpec): PackedFile {
+  const r = readFacts(file, maxFileBytes, "extract", stripMacros, preproc, cache);
+  const p = packFacts(r.facts, r.hash, compress);
+  if (r.cached) p.cached = true;
+  return p;
 }
 
 interface PoolJob<I, R> {
@@ -231,7 +310,7 @@ async function runPool<I, R>(items: I[], job: PoolJob<I, R>): Promise<R[]> {
 export function runWorkerIfAsked(): boolean {
   if (isMainThread || !parentPort || (workerData as { tag?: string } | null)?.tag !== WORKER_TAG) return false;
   const port = parentPort;
-  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[]; compress?: boolean; preproc?: PreprocData; runDeadline?: number };
+  const data = workerData as { mode: WorkMode; maxFileBytes: number; stripMacros?: string[]; compress?: boolean; preproc?: PreprocData; cache?: CacheSpec; runDeadline?: number };
   if (typeof data.runDeadline === "number") setRunDeadline(data.runDeadline);
   const mode = data.mode;
   // the heap of a worker that packs its results holds only garbage between batches
@@ -240,11 +319,11 @@ export function runWorkerIfAsked(): boolean {
   if (mode === "pack") {
     // packed facts are moved, not copied (their buffers are transferred)
     serve = (items) => {
-      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros, !!data.compress, data.preproc));
+      const out = (items as string[]).map((f) => packOne(f, data.maxFileBytes, data.stripMacros, !!data.compress, data.preproc, data.cache));
       return { out, moved: out.flatMap((p) => (p.packed ? [p.packed.buffer as ArrayBuffer] : [])) };
     };
   } else {
-    serve = (items) => ({ out: (items as string[]).map((f) => readFacts(f, data.maxFileBytes, mode, data.stripMacros, data.preproc)), moved: [] });
+    serve = (items) => ({ out: (items as string[]).map((f) => readFacts(f, data.maxFileBytes, mode, data.stripMacros, data.preproc, data.cache)), moved: [] });
   }
   void initParsers().then(() => {
     port.on("message", (m: { stop?: boolean; start: number; items: unknown[] }) => {

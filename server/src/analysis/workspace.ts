@@ -6,7 +6,7 @@ import * as fs from "node:fs";
 import * as path from "node:path";
 import picomatch from "picomatch";
 import { createHash } from "node:crypto";
-import { extractFile, initParsers, type ExtractOptions, skippedFacts } from "../extract/index.js";
+import { extractFile, getRunDeadline, initParsers, type ExtractOptions, skippedFacts } from "../extract/index.js";
 import { langOf } from "../parse/parser.js";
 import { DEFAULT_CONFIG, Model } from "../model/boundary.js";
 import type { FileFacts } from "../model/types.js";
@@ -27,6 +27,7 @@ import type { ModDecl } from "../model/types.js";
 import { discoverProject, findProjectRoot } from "./project.js";
 import { includeReader } from "./include-reader.js";
 import type { PreprocEnv } from "../extract/preproc/index.js";
+import { evict, FactsCache, settingsKey, type CacheSpec } from "./facts-cache.js";
 
 export const SKIP_DIRS = new Set(["target", "node_modules", ".git", "build", "out", "dist", ".cache", ".svn", ".hg", "__pycache__"]);
 
@@ -178,6 +179,28 @@ export class Workspace {
 
   constructor(public config: FerruleConfig = DEFAULTS) {}
 
+  /** The facts cache on disk (analysis/facts-cache.ts): its folder, the code's id and the size
+   * cap. Unset: no cache. Used by checkChunked, loadAllAsync and load. */
+  cacheAt: { dir: string; code: string; maxBytes: number } | undefined;
+  /** Files whose facts the last load took from the cache, and those it read. */
+  readonly cacheCounts = { hits: 0, misses: 0 };
+  private loadCache: FactsCache | undefined;
+
+  /** The cache's full spec under the current settings (`preproc`: the preprocessor reads
+   * included files, as every load of a Workspace does). */
+  private cacheSpec(): CacheSpec | undefined {
+    if (!this.cacheAt) return undefined;
+    const settings = settingsKey({ targets: this.config.targets, defines: this.config.defines, stripMacros: this.config.stripMacros, maxFileBytes: this.config.maxFileBytes, includePaths: this.config.includePaths, preproc: true });
+    return { ...this.cacheAt, settings };
+  }
+
+  /** Keeps the cache folder under its cap after a load that wrote to it. */
+  private afterLoad(hits: number, misses: number): void {
+    this.cacheCounts.hits += hits;
+    this.cacheCounts.misses += misses;
+    if (this.cacheAt && misses > 0) evict(this.cacheAt.dir, this.cacheAt.maxBytes);
+  }
+
   /** The project as its build sees it (link units, features, module conditions), or undefined
    * when the tree has no build file ferrule reads. */
   project(): ProjectInfo | undefined {
@@ -305,6 +328,34 @@ export class Workspace {
       this.setFacts(file, skippedFacts(file, `cannot read: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`));
       return;
     }
+    if (this.cacheAt && !opts.oldTree && !opts.keepTree && !this.entries.has(file)) {
+      // the cache (a first read of a file from disk: the language server's scan)
+      const spec = this.cacheSpec()!;
+      if (this.loadCache?.spec.settings !== spec.settings || this.loadCache.spec.dir !== spec.dir) this.loadCache = new FactsCache(spec);
+      const cache = this.loadCache;
+      const hash = createHash("sha1").update(text).digest("hex");
+      const isC = langOf(file) !== "rust";
+      if (!this.known.has(file)) this.env = undefined; // a new file may change how an include resolves
+      if (isC) {
+        this.env = undefined;
+        this.texts.set(file, text);
+      }
+      const env = this.preprocEnv();
+      const hit = getRunDeadline() > Date.now() ? cache.get(file, hash, env.readInclude) : undefined;
+      let facts = hit;
+      if (facts) this.cacheCounts.hits++;
+      else {
+        const traced = cache.tracing(env.readInclude);
+        facts = extractFile(file, text, { ...opts, maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, preproc: { ...env, readInclude: traced.read } });
+        cache.put(file, hash, facts, traced.trace);
+        this.cacheCounts.misses++;
+      }
+      if (note) facts.notices.push(encodingNotice(file, note));
+      this.entries.set(file, { hash, facts });
+      if (this.projectRoot) this.invalidateProject();
+      this.invalidate();
+      return;
+    }
     this.update(file, text, opts);
     if (note) this.entries.get(file)?.facts.notices.push(encodingNotice(file, note));
   }
@@ -320,8 +371,13 @@ export class Workspace {
   async loadAllAsync(paths: string[], onProgress?: (n: number, total: number) => void, opts: { script?: string; workers?: number } = {}): Promise<void> {
     const walk = listSources(paths, this.config.exclude, undefined, [...paths, ...this.config.includePaths]);
     this.walkNotices.push(...walk.notices);
-    const loaded = await loadFiles(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress, preproc: this.preprocData(walk.files) });
-    for (const r of loaded) this.entries.set(r.file, { hash: r.hash, facts: r.facts });
+    const loaded = await loadFiles(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress, preproc: this.preprocData(walk.files), cache: this.cacheSpec() });
+    let hits = 0;
+    for (const r of loaded) {
+      this.entries.set(r.file, { hash: r.hash, facts: r.facts });
+      if (r.cached) hits++;
+    }
+    this.afterLoad(hits, loaded.length - hits);
     this.projectRoot ??= paths.length ? findProjectRoot(path.resolve(paths[0]!)) : undefined;
     this.projectInfo = null;
     this.invalidate();
@@ -411,7 +467,9 @@ export class Workspace {
     const readPaths = root ? [root] : paths;
     const walk = listSources(readPaths, this.config.exclude, undefined, [...readPaths, ...this.config.includePaths]);
     this.walkNotices.push(...walk.notices);
-    const packed = await loadPacked(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress: opts.onProgress, compress: shouldCompress(walk.files), preproc: this.preprocData(walk.files) });
+    const packed = await loadPacked(walk.files, { maxFileBytes: this.config.maxFileBytes, stripMacros: this.config.stripMacros, script: opts.script, workers: opts.workers, onProgress: opts.onProgress, compress: shouldCompress(walk.files), preproc: this.preprocData(walk.files), cache: this.cacheSpec() });
+    const hits = packed.filter((p) => p.cached).length;
+    this.afterLoad(hits, packed.length - hits);
     opts.onPhase?.("read+extract");
     this.projectRoot ??= root ?? (paths.length ? findProjectRoot(path.resolve(paths[0]!)) : undefined);
     const modsBy = new Map(packed.filter((p) => p.mods).map((p) => [p.file, p.mods!]));

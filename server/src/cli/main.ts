@@ -16,6 +16,7 @@ import { makeBaseline, newSince, readBaseline } from "./baseline.js";
 import { readSmallRegularFile, UnsafeFileError } from "../analysis/textio.js";
 import { setRunDeadline } from "../extract/index.js";
 import { findProjectRoot } from "../analysis/project.js";
+import { codeId, defaultCacheDir, insideAny } from "../analysis/facts-cache.js";
 
 export const VERSION = "0.1.0";
 
@@ -25,12 +26,15 @@ const HELP = `ferrule ${VERSION} — checks the C ABI seam between Rust and C/C+
 
 usage:
   ferrule check [--format text|json|sarif] [--target TRIPLE]... [--config FILE] [--show-fixes]
-                [--baseline FILE [--update-baseline]] [--fail-on-skip] [PATH...]
+                [--baseline FILE [--update-baseline]] [--fail-on-skip]
+                [--cache-dir DIR | --no-cache] [PATH...]
   ferrule layout [--target TRIPLE]... [--format json|text] PATH...
   ferrule lsp --stdio
   ferrule --version
 
 targets: ${ALL_TRIPLES.join(", ")} (also: x86_64, aarch64, armv7, i686, x86_64-windows)
+facts cache: unchanged files are not read again; default folder $XDG_CACHE_HOME/ferrule or
+  ~/.cache/ferrule (%LOCALAPPDATA%\ferrule\cache on Windows; FERRULE_CACHE_DIR overrides it)
 exit codes: 0 clean, 1 findings at error severity, 2 usage or configuration error
 `;
 
@@ -46,13 +50,16 @@ interface Opts {
   failOnSkip: boolean;
   baseline?: string;
   updateBaseline: boolean;
+  /** --cache-dir DIR: the facts cache's folder; --no-cache: none. */
+  cacheDir?: string;
+  noCache: boolean;
 }
 
 function parseArgs(argv: string[]): Opts {
   const [cmd, ...rest] = argv;
   if (!cmd || cmd === "--help" || cmd === "-h" || cmd === "help") throw new UsageError("");
   if (!["check", "layout", "lsp"].includes(cmd)) throw new UsageError(`unknown command \`${cmd}\` (expected check, layout or lsp)`);
-  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false, failOnSkip: false, updateBaseline: false };
+  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false, failOnSkip: false, updateBaseline: false, noCache: false };
   for (let i = 0; i < rest.length; i++) {
     const a = rest[i]!;
     const val = (): string => {
@@ -78,6 +85,8 @@ function parseArgs(argv: string[]): Opts {
     else if (flag === "--baseline") o.baseline = val();
     else if (flag === "--update-baseline") o.updateBaseline = true;
     else if (flag === "--fail-on-skip") o.failOnSkip = true;
+    else if (flag === "--cache-dir") o.cacheDir = val();
+    else if (flag === "--no-cache") o.noCache = true;
     else if (flag === "--stdio") o.stdio = true;
     // Options language clients add when they start a server (vscode-languageclient appends
     // --clientProcessId=N); vscode-languageserver reads them from argv itself.
@@ -90,6 +99,7 @@ function parseArgs(argv: string[]): Opts {
   }
   if (cmd === "lsp" && !o.stdio) throw new UsageError("lsp needs --stdio");
   if (o.updateBaseline && !o.baseline) throw new UsageError("--update-baseline needs --baseline FILE");
+  if (o.noCache && o.cacheDir !== undefined) throw new UsageError("--cache-dir and --no-cache exclude each other");
   return o;
 }
 
@@ -206,6 +216,13 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
     t0 = t;
   };
   const roots = paths.map((p) => path.resolve(io.cwd, p));
+  // the facts cache (analysis/facts-cache.ts): never inside the checked repository
+  const cacheDir = o.noCache ? undefined : o.cacheDir !== undefined ? path.resolve(io.cwd, o.cacheDir) : defaultCacheDir();
+  if (cacheDir) {
+    const repo = roots.map((r) => findProjectRoot(r) ?? r);
+    if (insideAny(cacheDir, [...roots, ...repo])) io.stderr(`ferrule: the facts cache ${cacheDir} lies inside the checked folder; not used (pass --cache-dir elsewhere, or --no-cache)\n`);
+    else ws.cacheAt = { dir: cacheDir, code: codeId(VERSION, bundleScript()), maxBytes: cfg.cacheMaxMb * 2 ** 20 };
+  }
   if (o.cmd === "layout") {
     await ws.loadAllAsync(roots, progress, { script: bundleScript() });
     if (progress) io.stderr("\r\x1b[K");
@@ -224,7 +241,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   const projectRoot = roots.length === 1 ? findProjectRoot(roots[0]!) : undefined;
   const res = await ws.checkChunked(roots, { script: bundleScript(), chunkFiles, withFixes: o.showFixes, onProgress: progress, onPhase: phase, root: projectRoot });
   if (progress) io.stderr("\r\x1b[K");
-  phase(`check (${res.files} files in ${res.chunks} chunk(s), largest ${res.largestChunk})`);
+  phase(`check (${res.files} files in ${res.chunks} chunk(s), largest ${res.largestChunk}; facts cache ${ws.cacheAt ? `${ws.cacheCounts.hits} hit(s), ${ws.cacheCounts.misses} read` : "off"})`);
   let json: JsonFinding[] = res.findings.map((f) => {
     const j = toJsonFinding(f, io.cwd);
     const fx = res.fixes.get(f);

@@ -13,6 +13,9 @@ import {
   type WorkspaceEdit,
 } from "vscode-languageserver/node";
 import { Workspace } from "../analysis/workspace.js";
+import { codeId, defaultCacheDir, insideAny } from "../analysis/facts-cache.js";
+import { bundleScript } from "../analysis/parallel.js";
+import { VERSION } from "../cli/main.js";
 import type { FerruleConfig } from "../analysis/config.js";
 import { CONFIG_FILE } from "../analysis/config.js";
 import { initParsers, langOf } from "../parse/parser.js";
@@ -138,6 +141,14 @@ export function startServer(conn?: Connection): void {
       void connection.sendNotification(ShowMessageNotification.type, { type: MessageType.Warning, message: msg });
     }
     return r.config;
+  }
+
+  /** The CLI's facts cache serves the first scan too (unless FERRULE_CACHE_DIR="" or the folder
+   * lies inside a workspace folder). */
+  function withCache(ws: Workspace): Workspace {
+    const dir = process.env.FERRULE_CACHE_DIR === "" ? undefined : defaultCacheDir();
+    if (dir && !insideAny(dir, roots)) ws.cacheAt = { dir, code: codeId(VERSION, bundleScript()), maxBytes: ws.config.cacheMaxMb * 2 ** 20 };
+    return ws;
   }
 
   async function scan(reason: string): Promise<void> {
@@ -299,7 +310,7 @@ export function startServer(conn?: Connection): void {
     ready = (async () => {
       await initParsers();
       settings = await fetchSettings();
-      engine = new Engine(new Workspace(configure()));
+      engine = new Engine(withCache(new Workspace(configure())));
       if (caps.workspace?.didChangeWatchedFiles?.dynamicRegistration) {
         void connection.client.register(DidChangeWatchedFilesNotification.type, {
           watchers: [{ globPattern: "**/*.{rs,c,h,cc,cpp,cxx,hpp,hh,hxx}" }, { globPattern: `**/${CONFIG_FILE}` }, { globPattern: "**/{Cargo.toml,compile_commands.json}" }],
@@ -396,7 +407,7 @@ export function startServer(conn?: Connection): void {
     const cfg = configure();
     // Clients send didChangeConfiguration right after start; re-index only when something changed.
     if (onlyIfChanged && JSON.stringify(cfg) === JSON.stringify(engine.ws.config)) return;
-    engine.reset(new Workspace(cfg));
+    engine.reset(withCache(new Workspace(cfg)));
     await scan(reason);
   }
 
