@@ -49,7 +49,9 @@ export function formatText(findings: JsonFinding[], color: boolean): string {
   const sevColor: Record<string, string> = { error: "31", warning: "33", info: "36", hint: "2" };
   const lines: string[] = [];
   for (const f of findings) {
-    lines.push(`${f.file}:${f.line}:${f.column}: ${c(sevColor[f.severity] ?? "0", f.severity)}: ${f.message} [${f.rule}]`);
+    // gcc's words: info and hint are printed as `note`, so log matchers for gcc see them
+    const word = f.severity === "info" || f.severity === "hint" ? "note" : f.severity;
+    lines.push(`${f.file}:${f.line}:${f.column}: ${c(sevColor[f.severity] ?? "0", word)}: ${f.message} [${f.rule}]`);
     for (const r of f.related) lines.push(`    ${r.file}:${r.line}:${r.column}: ${r.message}`);
     for (const fx of f.fixes ?? []) {
       lines.push(`    fix: ${fx.title}`);

@@ -28,6 +28,7 @@ usage:
                 [--baseline FILE [--update-baseline]] [--fail-on-skip] [PATH...]
   ferrule layout [--target TRIPLE]... [--format json|text] PATH...
   ferrule lsp --stdio
+  ferrule --version
 
 targets: ${ALL_TRIPLES.join(", ")} (also: x86_64, aarch64, armv7, i686, x86_64-windows)
 exit codes: 0 clean, 1 findings at error severity, 2 usage or configuration error
@@ -139,6 +140,10 @@ export interface RunIO {
 export async function run(argv: string[], io: RunIO): Promise<number> {
   let o: Opts;
   try {
+    if (argv[0] === "--version" || argv[0] === "-V" || argv[0] === "version") {
+      io.stdout(`ferrule ${VERSION}\n`);
+      return 0;
+    }
     o = parseArgs(argv);
   } catch (e) {
     if (e instanceof UsageError) {
@@ -256,7 +261,7 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
   phase("findings");
   if (o.format === "json") io.stdout(formatJson(json));
   else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
-  else io.stdout(formatText(json, io.isTTY && !process.env.NO_COLOR) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
+  else io.stdout(formatText(json, useColor(io.isTTY)) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
   return json.some((f) => f.severity === "error") || (o.failOnSkip && skipped.length > 0) ? 1 : 0;
 }
 
@@ -274,4 +279,12 @@ export async function main(): Promise<void> {
     process.stderr.write(`ferrule: internal error: ${(e as Error).stack ?? e}\n`);
     process.exitCode = 2;
   }
+}
+
+/** Colour on a terminal; `NO_COLOR` (any value) turns it off and `FORCE_COLOR` (not "0") turns
+ * it on, the common conventions of command-line tools. */
+export function useColor(tty: boolean, env: NodeJS.ProcessEnv = process.env): boolean {
+  if (env.NO_COLOR !== undefined && env.NO_COLOR !== "") return false;
+  if (env.FORCE_COLOR !== undefined && env.FORCE_COLOR !== "0" && env.FORCE_COLOR !== "false") return true;
+  return tty;
 }

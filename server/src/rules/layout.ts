@@ -226,6 +226,9 @@ function computePairs(model: Model): Pair[] {
         add(q.r, q.c, `they are field ${i + 1} of \`${p.rust.name}\` / \`${p.c.name}\``, q.byValue && p.byValueOnly);
         const np = pairs.get(key)!;
         if (p.weak && !seamTypes(model).has(q.r.id)) np.weak = true;
+        // a C struct whose body lives in a .c file is that translation unit's private state:
+        // met through another struct's field, not through a seam function, it is no sure mirror
+        if (!C_HEADER.test(q.c.file)) np.weak = true;
         queue.push(np);
       }
     }
@@ -246,7 +249,7 @@ function computePairs(model: Model): Pair[] {
     if (pairedRust.has(d.id)) continue; // a signature pairs it with another C type: that one is its mirror
     add(d, cs[0]!, "they have the same name", false);
     const np = pairs.get(key)!;
-    if (!seamTypes(model).has(d.id)) np.weak = true;
+    if (!seamTypes(model).has(d.id) || !C_HEADER.test(cs[0]!.file)) np.weak = true;
     named.push(np);
   }
   nest(named);
@@ -301,7 +304,9 @@ function weaken(p: Pair, out: Finding[], from: number): void {
     const f = out[i]!;
     if (f.severity === "info") continue;
     f.severity = "info";
-    f.message += ` — paired by name only: no seam function passes \`${p.rust.name}\` or \`${p.c.name}\`, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`;
+    f.message += C_HEADER.test(p.c.file)
+      ? ` — paired by name only: no seam function passes \`${p.rust.name}\` or \`${p.c.name}\`, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`
+      : ` — \`${p.c.name}\` is private to ${p.c.file.split(/[\\/]/).pop()} and no seam function passes it, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`;
   }
 }
 
