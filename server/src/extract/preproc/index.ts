@@ -236,6 +236,8 @@ interface Frame {
   conds?: string[];
   /** The current branch's own condition when it is undecided. */
   cur?: string;
+  /** An undecided branch of the group is kept in the text already. */
+  keptBranch?: boolean;
 }
 
 interface Edit {
@@ -290,6 +292,17 @@ class Run {
     };
     const closeBranch = (f: Frame, nextStart: number) => {
       if (f.outer && f.mode === "off") blank(f.bodyStart, nextStart);
+      else if (emit && f.outer && f.mode === "maybe") {
+        // undecided branches all stay in the text for the grammar to read; one that opens or
+        // closes a brace it does not match (`#if A` `if (x) {` `#else` `{` `#endif`) would leave
+        // the text unbalanced with the first one beside it, so after the first kept branch such a
+        // branch is left out (the grammar reads one reading of the braces, not two)
+        if (f.keptBranch && braceBalance(toks, f.bodyStart, nextStart) !== 0) {
+          while (this.edits.length && this.edits[this.edits.length - 1]!.s >= f.bodyStart) this.edits.pop();
+          blank(f.bodyStart, nextStart);
+        }
+        f.keptBranch = true;
+      }
     };
     let steps = 0;
     while (i < toks.length) {
@@ -677,6 +690,18 @@ function outsideBodies(out: Tok[]): string | undefined {
   }
   if (depth !== 0 || paren !== 0 || !defs || parts[parts.length - 1] !== "{}") return undefined;
   return parts.join(" ");
+}
+
+/** `{` minus `}` among the tokens that start in [s, e). */
+function braceBalance(toks: Tok[], s: number, e: number): number {
+  let lo = 0, hi = toks.length;
+  while (lo < hi) { const mid = (lo + hi) >> 1; if (toks[mid]!.s < s) lo = mid + 1; else hi = mid; }
+  let n = 0;
+  for (let k = lo; k < toks.length && toks[k]!.s < e; k++) {
+    if (toks[k]!.t === "{") n++;
+    else if (toks[k]!.t === "}") n--;
+  }
+  return n;
 }
 
 function lineOf(text: string, at: number): number {
