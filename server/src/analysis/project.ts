@@ -76,10 +76,10 @@ export function findProjectRoot(start: string): string {
   return best ?? (fs.statSync(start).isDirectory() ? start : path.dirname(start));
 }
 
-interface Scan { cargo: string[]; ccdb: string[]; cbuild: Map<string, string>; asm: boolean; asmFiles: string[] }
+interface Scan { cargo: string[]; ccdb: string[]; cbuild: Map<string, string>; asm: boolean; asmFiles: string[]; objcFiles: string[] }
 
 function scanTree(root: string): Scan {
-  const out: Scan = { cargo: [], ccdb: [], cbuild: new Map(), asm: false, asmFiles: [] };
+  const out: Scan = { cargo: [], ccdb: [], cbuild: new Map(), asm: false, asmFiles: [], objcFiles: [] };
   let budget = 200_000; // entries visited at most (a huge tree is read partly rather than hang)
   const visit = (dir: string, depth: number) => {
     if (depth > 32 || budget <= 0) return;
@@ -104,6 +104,7 @@ function scanTree(root: string): Scan {
           out.asm = true;
           if (out.asmFiles.length < MAX_ASM_FILES) out.asmFiles.push(p);
         }
+        else if (OBJC_EXT.test(d.name) && out.objcFiles.length < MAX_ASM_FILES) out.objcFiles.push(p);
       }
     }
   };
@@ -112,6 +113,9 @@ function scanTree(root: string): Scan {
 }
 
 const MAX_ASM_FILES = 4000;
+/** Objective-C and Objective-C++ sources: ferrule parses no Objective-C, it only reads their
+ * identifiers (with the C tokenizer, whose lexical grammar Objective-C extends). */
+const OBJC_EXT = /\.(m|mm)$/i;
 
 /**
  * The identifiers of the tree's assembly sources (read with the C tokenizer: names, labels and the
@@ -119,12 +123,12 @@ const MAX_ASM_FILES = 4000;
  * appears in them may be defined in assembly, which ferrule does not read. Bounded: at most
  * MAX_ASM_FILES files of up to 2 MB each, regular files inside the root only.
  */
-function asmIdentifiers(root: string, files: string[]): Set<string> {
+function asmIdentifiers(root: string, files: string[], asm = true): Set<string> {
   const out = new Set<string>();
   for (const f of files) {
     let text: string;
     try { text = readSmallRegularFile(f, { root, limit: 2 * 1024 * 1024 }); } catch { continue; }
-    for (const t of tokenize(text)) if (t.k === 1 /* K.Ident */) out.add(t.t.replace(/^_/, ""));
+    for (const t of tokenize(text)) if (t.k === 1 /* K.Ident */) out.add(asm ? t.t.replace(/^_/, "") : t.t);
   }
   return out;
 }
@@ -468,6 +472,6 @@ export function discoverProject(root: string, sources: readonly string[], modsOf
   for (const c of crates.values()) for (const l of c.libs) builtLibs.add(l);
   const hasAsm = scan.asm || pkgs.some((p) => p.deps.some((d) => d.build && /^nasm/.test(d.pkgName ?? d.key)));
   const includeDirs = [...new Set([...compiled.values()].flatMap((e) => e.includes))];
-  const info: ProjectInfo = { root: root.endsWith(path.sep) ? root : root + path.sep, files, crates, hasAsm, asmNames: asmIdentifiers(root, scan.asmFiles), builtLibs, defines: settings.defines ?? {}, includeDirs };
+  const info: ProjectInfo = { root: root.endsWith(path.sep) ? root : root + path.sep, files, crates, hasAsm, asmNames: asmIdentifiers(root, scan.asmFiles), objcNames: scan.objcFiles.length ? asmIdentifiers(root, scan.objcFiles, false) : undefined, builtLibs, defines: settings.defines ?? {}, includeDirs };
   return info;
 }

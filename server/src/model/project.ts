@@ -48,6 +48,9 @@ export interface ProjectInfo {
   hasAsm: boolean;
   /** Identifiers of the tree's assembly sources (a leading `_` dropped): names they may define. */
   asmNames?: Set<string>;
+  /** Identifiers of the tree's Objective-C sources (`.m`, `.mm`), which ferrule does not parse:
+   * a function named there may be declared or defined there. */
+  objcNames?: Set<string>;
   /** Libraries the tree builds (package `links`, library target names, C build targets). */
   builtLibs: Set<string>;
   /** Configured defines (`defines = {…}` in .ferrule.toml), for every C/C++ file. */

@@ -166,6 +166,13 @@ export const symbolsFamily: RuleFamily = {
           // (a private export — not `pub` — is kept by name for debuggers or backtraces, not
           // offered to C as API)
           if (oneSided(model, e) || e.isPub === false) continue;
+          if (model.config.project?.objcNames?.has(e.symbol)) {
+            // (declared, presumably, in an Objective-C source: ferrule reads only its identifiers)
+            const f = finding(NO_C_DECLARATION, e.nameRange, `\`${e.symbol}\` is exported to C and no C or C++ file declares it, but an Objective-C source (.m/.mm) of the workspace names it; ferrule does not parse Objective-C, so its declaration there is not checked`, [], { data: { fn: e.id } });
+            f.severity = "info";
+            out.push(f);
+            continue;
+          }
           out.push(finding(NO_C_DECLARATION, e.nameRange, `\`${e.symbol}\` is exported to C but no header or C++ file in the workspace declares it`, [], { data: { fn: e.id } }));
         }
       }
@@ -221,6 +228,12 @@ export const symbolsFamily: RuleFamily = {
         if (hasC) {
           for (const i of imports) {
             if (protos.length || outsideImport(model, i)) continue;
+            if (model.config.project?.objcNames?.has(i.symbol)) {
+              const f = finding(NO_DEFINITION, i.nameRange, `\`${i.symbol}\` is imported from C and no C/C++ file declares or defines it, but an Objective-C source (.m/.mm) of the workspace names it; ferrule does not parse Objective-C, so its definition there is not checked`, [], { data: { fn: i.id } });
+              f.severity = "info";
+              out.push(f);
+              continue;
+            }
             // a C macro use whose expansion ferrule could not apply (it meets a macro defined
             // differently under undecided conditions) names the symbol: it may define it there
             const cm = model.macrosNaming(i.symbol).filter((m) => m.c);

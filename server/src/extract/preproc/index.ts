@@ -236,6 +236,8 @@ interface Frame {
   conds?: string[];
   /** The current branch's own condition when it is undecided. */
   cur?: string;
+  /** An undecided branch of the group is kept in the text already. */
+  keptBranch?: boolean;
 }
 
 interface Edit {
@@ -290,6 +292,17 @@ class Run {
     };
     const closeBranch = (f: Frame, nextStart: number) => {
       if (f.outer && f.mode === "off") blank(f.bodyStart, nextStart);
+      else if (emit && f.outer && f.mode === "maybe") {
+        // undecided branches all stay in the text for the grammar to read; one that opens or
+        // closes a brace it does not match (`#if A` `if (x) {` `#else` `{` `#endif`) would leave
+        // the text unbalanced with the first one beside it, so after the first kept branch such a
+        // branch is left out (the grammar reads one reading of the braces, not two)
+        if (f.keptBranch && braceBalance(toks, f.bodyStart, nextStart) !== 0) {
+          while (this.edits.length && this.edits[this.edits.length - 1]!.s >= f.bodyStart) this.edits.pop();
+          blank(f.bodyStart, nextStart);
+        }
+        f.keptBranch = true;
+      }
     };
     let steps = 0;
     while (i < toks.length) {
@@ -541,6 +554,60 @@ class Run {
     if (names.size && names.size <= 64) this.undecided.push({ macro: first.t, names: [...names], s: first.s, e: toks[end]!.e, keepsName });
   }
 
+  /**
+   * A macro use whose expansion defines functions (`EBUR128_FILTER(short, …)`-like generators, one
+   * definition per sample type, names made with `##`) and meets an undecided macro only inside
+   * the function bodies (a denormal guard chosen by `#if __SSE2_MATH__`): every reading defines
+   * the same functions with the same declarators, so the first reading's expansion stands for
+   * them all. Undefined when some reading differs outside a body, a second macro is undecided,
+   * or the expansion defines no function.
+   */
+  private bodyOnly(toks: Tok[], i: number, limit: number, unsure: string): { out: Tok[]; at: number } | undefined {
+    // the undecided macros the expansion meets, found one at a time; every combination of their
+    // readings (at most 32) is expanded
+    const names = [unsure];
+    for (let round = 0; round < 6; round++) {
+      const choices = names.map((n) => {
+        const e = this.table.map.get(n);
+        if (!e) return [];
+        const c: (MacroDef | undefined)[] = e.defs.slice(0, 4);
+        if (e.maybeUndef) c.push(undefined);
+        return c;
+      });
+      if (choices.some((c) => !c.length) || choices.reduce((n, c) => n * c.length, 1) > 32) return undefined;
+      let first: { out: Tok[]; at: number; shape: string } | undefined;
+      let met: string | undefined;
+      const pick = new Array<number>(names.length).fill(0);
+      for (;;) {
+        const t = this.table.clone();
+        names.forEach((n, k) => {
+          const d = choices[k]![pick[k]!];
+          if (d) t.map.set(n, { defs: [d], maybeUndef: false });
+          else t.map.delete(n);
+        });
+        let at = i;
+        const r: Reader = { next: () => (at < limit ? toks[at++] : undefined), peek: () => (at < limit ? toks[at] : undefined) };
+        const ex = new Expander(t, { maxSteps: 50_000, onAmbiguous: (n) => { met ??= n; return undefined; } });
+        const out: Tok[] = [];
+        try {
+          ex.step(r, out);
+          while (ex.hasPending()) ex.step(r, out);
+        } catch { return undefined; }
+        if (met !== undefined) break;
+        const shape = outsideBodies(out);
+        if (shape === undefined) return undefined;
+        if (!first) first = { out, at, shape };
+        else if (first.shape !== shape || first.at !== at) return undefined;
+        let k = 0;
+        while (k < pick.length && ++pick[k]! >= choices[k]!.length) pick[k++] = 0;
+        if (k === pick.length) return first;
+      }
+      if (names.includes(met!)) return undefined;
+      names.push(met!);
+    }
+    return undefined;
+  }
+
   /** Expands the macro use starting at toks[i]; returns the index after what it consumed. */
   private expandAt(text: string, toks: Tok[], i: number, limit: number): number {
     const first = toks[i]!;
@@ -570,9 +637,16 @@ class Run {
       throw e;
     }
     if (unsure !== undefined) {
-      if ((this.table.map.get(unsure)?.defs.length ?? 0) > 1) this.ambiguous.add(unsure);
-      this.noteUndecided(toks, i, limit);
-      return i + 1;
+      const body = outsideBodies(out) !== undefined ? this.bodyOnly(toks, i, limit, unsure) : undefined;
+      if (body) {
+        out.length = 0;
+        out.push(...body.out);
+        at = body.at;
+      } else {
+        if ((this.table.map.get(unsure)?.defs.length ?? 0) > 1) this.ambiguous.add(unsure);
+        this.noteUndecided(toks, i, limit);
+        return i + 1;
+      }
     }
     if (out.length === 1 && out[0] === first) return i + 1;
     const last = toks[at - 1]!;
@@ -587,6 +661,47 @@ class Run {
     this.expansions++;
     return at;
   }
+}
+
+/**
+ * The tokens of an expansion outside its function bodies, spelled, when it is a sequence of
+ * complete function definitions (`… name ( … ) { … }` at file level, C11 §6.9.1); undefined
+ * otherwise (a statement, an expression, unbalanced braces).
+ */
+function outsideBodies(out: Tok[]): string | undefined {
+  const parts: string[] = [];
+  let depth = 0, paren = 0, defs = 0;
+  for (let k = 0; k < out.length; k++) {
+    const t = out[k]!;
+    if (depth === 0) {
+      if (t.t === "(") paren++;
+      else if (t.t === ")") paren--;
+      if (t.t === "{") {
+        if (paren !== 0 || out[k - 1]?.t !== ")") return undefined;
+        defs++;
+        depth = 1;
+        parts.push("{}");
+        continue;
+      }
+      if (t.t === "}" || t.t === "=") return undefined;
+      parts.push(t.t);
+    } else if (t.t === "{") depth++;
+    else if (t.t === "}") depth--;
+  }
+  if (depth !== 0 || paren !== 0 || !defs || parts[parts.length - 1] !== "{}") return undefined;
+  return parts.join(" ");
+}
+
+/** `{` minus `}` among the tokens that start in [s, e). */
+function braceBalance(toks: Tok[], s: number, e: number): number {
+  let lo = 0, hi = toks.length;
+  while (lo < hi) { const mid = (lo + hi) >> 1; if (toks[mid]!.s < s) lo = mid + 1; else hi = mid; }
+  let n = 0;
+  for (let k = lo; k < toks.length && toks[k]!.s < e; k++) {
+    if (toks[k]!.t === "{") n++;
+    else if (toks[k]!.t === "}") n--;
+  }
+  return n;
 }
 
 function lineOf(text: string, at: number): number {
