@@ -483,6 +483,9 @@ export class Workspace {
     const chunks = plan.map((c) => c.map((i) => packed[i]!));
     packed.length = 0; // the files now live in `chunks` only, each let go once checked
     opts.onPhase?.("plan");
+    // the system-mirror check reads system headers in this thread (analysis/system.ts), whose
+    // parsers are not loaded when the files were read on workers
+    await initParsers();
     const ctx = { config: { ...this.config, includePaths }, sides, withFixes: !!opts.withFixes, includeIndex, project };
     // Checked in this thread, one chunk at a time. (Checking chunks on worker threads was measured
     // slower on two cores: 9.6 s against 6.7 s at 1M lines, each worker paying its own start-up

@@ -37,6 +37,9 @@ function mirrors(model: Model): { d: TypeDecl; sys: Partial<Record<Triple, Syste
 
 /** The first difference between the mirror's layout and the header's, in words, or undefined. */
 function difference(rust: Layout, sys: Layout, name: string): string | undefined {
+  // a zero-sized struct (`struct epoll_event { _priv: () }`) is an opaque marker, only ever
+  // behind a pointer, not a copy of the header's layout
+  if (rust.size === 0) return undefined;
   const rf = rust.fields ?? [];
   const sf = sys.fields ?? [];
   for (let i = 0; i < Math.min(rf.length, sf.length); i++) {
