@@ -96,6 +96,57 @@ describe("ferrule check on the demo", () => {
   });
 });
 
+describe("CLI conventions", () => {
+  test("--version prints the version of package.json", () => {
+    const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, "package.json"), "utf8"));
+    const r = ferrule(["--version"]);
+    expect(r.code).toBe(0);
+    expect(r.out.trim()).toBe(`ferrule ${pkg.version}`);
+  });
+
+  test("each command's --help describes each of its flags and exits 0", () => {
+    const flags: Record<string, string[]> = {
+      check: ["--format", "--target", "--config", "--show-fixes", "--baseline", "--update-baseline", "--fail-on", "--fail-on-skip"],
+      layout: ["--format", "--target"],
+      lsp: ["--stdio"],
+    };
+    for (const [cmd, fl] of Object.entries(flags)) {
+      const r = ferrule([cmd, "--help"]);
+      expect(r.code).toBe(0);
+      expect(r.out).toMatch(new RegExp(`^usage: ferrule ${cmd}`));
+      for (const f of fl) expect(r.out).toMatch(new RegExp(`^\\s+${f}\\b.*\\S`, "m"));
+    }
+    // a flag of another command is refused
+    expect(ferrule(["layout", "--baseline", "x", "test-fixtures/sonar-demo"]).code).toBe(2);
+  });
+
+  test("text prints info and hint as gcc-style `note` lines", () => {
+    const json = JSON.parse(ferrule(["check", "--format", "json", "test-fixtures/sonar-demo"]).out).findings as { severity: string; file: string; line: number; column: number }[];
+    const notes = json.filter((f) => f.severity === "info" || f.severity === "hint");
+    expect(notes.length).toBeGreaterThan(0);
+    const text = ferrule(["check", "test-fixtures/sonar-demo"]).out;
+    for (const f of notes) expect(text).toContain(`${f.file}:${f.line}:${f.column}: note: `);
+    expect(text).not.toMatch(/: (info|hint): /);
+  });
+
+  test("--fail-on sets the lowest severity that exits 1", () => {
+    // test-fixtures/clean gives notes only
+    expect(ferrule(["check", "test-fixtures/clean"]).code).toBe(0);
+    expect(ferrule(["check", "--fail-on", "warning", "test-fixtures/clean"]).code).toBe(0);
+    expect(ferrule(["check", "--fail-on", "note", "test-fixtures/clean"]).code).toBe(1);
+    expect(ferrule(["check", "--fail-on", "error", "test-fixtures/sonar-demo"]).code).toBe(1);
+    expect(ferrule(["check", "--fail-on", "fatal", "test-fixtures/clean"]).code).toBe(2);
+  });
+
+  test("NO_COLOR and FORCE_COLOR decide colours", () => {
+    const run = (env: Record<string, string>) =>
+      spawnSync(process.execPath, [BIN, "check", "test-fixtures/sonar-demo"], { cwd: ROOT, encoding: "utf8", timeout: 60_000, env: { ...process.env, NO_COLOR: "", FORCE_COLOR: "", ...env } }).stdout;
+    expect(run({})).not.toContain("\x1b["); // not a terminal
+    expect(run({ FORCE_COLOR: "1" })).toContain("\x1b[31merror");
+    expect(run({ FORCE_COLOR: "1", NO_COLOR: "1" })).not.toContain("\x1b[");
+  });
+});
+
 describe("usage and configuration errors exit 2 with one line", () => {
   for (const [name, args] of [
     ["unknown flag", ["check", "--frobnicate"]],

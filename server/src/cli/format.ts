@@ -46,10 +46,12 @@ export function formatJson(findings: JsonFinding[]): string {
 
 export function formatText(findings: JsonFinding[], color: boolean): string {
   const c = (code: string, s: string) => (color ? `\x1b[${code}m${s}\x1b[0m` : s);
-  const sevColor: Record<string, string> = { error: "31", warning: "33", info: "36", hint: "2" };
+  const sevColor: Record<string, string> = { error: "31", warning: "33", note: "36" };
+  // info and hint print as gcc's `note` so that editors' and CI's problem matchers pick them up
+  const label = (s: string) => (s === "info" || s === "hint" ? "note" : s);
   const lines: string[] = [];
   for (const f of findings) {
-    lines.push(`${f.file}:${f.line}:${f.column}: ${c(sevColor[f.severity] ?? "0", f.severity)}: ${f.message} [${f.rule}]`);
+    lines.push(`${f.file}:${f.line}:${f.column}: ${c(sevColor[label(f.severity)] ?? "0", label(f.severity))}: ${f.message} [${f.rule}]`);
     for (const r of f.related) lines.push(`    ${r.file}:${r.line}:${r.column}: ${r.message}`);
     for (const fx of f.fixes ?? []) {
       lines.push(`    fix: ${fx.title}`);
