@@ -1,4 +1,4 @@
-// Regenerates the rules table in README.md from the rule metadata in server/src/rules.
+// Regenerates the rules table in docs/rules.md from the rule metadata in server/src/rules.
 import * as esbuild from "esbuild";
 import * as fs from "node:fs";
 import * as os from "node:os";
@@ -11,10 +11,10 @@ const out = path.join(fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-doc-")), "d
 fs.writeFileSync(out + ".entry.ts", `export { FAMILIES, INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON } from ${JSON.stringify(path.join(root, "server/src/rules/index.ts"))};\nexport { rulesMarkdown, replaceRulesSection } from ${JSON.stringify(path.join(root, "server/src/cli/rules-doc.ts"))};\n`);
 await esbuild.build({ entryPoints: [out + ".entry.ts"], outfile: out, bundle: true, platform: "node", format: "cjs", logLevel: "warning" });
 const m = createRequire(import.meta.url)(out);
-const readmePath = path.join(root, "README.md");
+const readmePath = path.join(root, "docs/rules.md");
 const readme = fs.readFileSync(readmePath, "utf8");
 const next = m.replaceRulesSection(readme, m.rulesMarkdown(m.FAMILIES, [m.INTERNAL, m.FILE_SKIPPED, m.FILE_ENCODING, m.UNKNOWN_MACRO, m.SUPPRESSION_WITHOUT_REASON]));
 if (next !== readme) {
   fs.writeFileSync(readmePath, next);
-  console.log("README.md rules table updated");
-} else console.log("README.md rules table already up to date");
+  console.log("docs/rules.md rules table updated");
+} else console.log("docs/rules.md rules table already up to date");

@@ -189,3 +189,54 @@ describe("usage and configuration errors exit 2 with one line", () => {
     expect(r.code).toBe(0); // nothing left at error severity
   });
 });
+
+describe("--version", () => {
+  test("prints the package version and exits 0", () => {
+    const root = path.resolve(__dirname, "..");
+    const pkg = JSON.parse(fs.readFileSync(path.join(root, "package.json"), "utf8"));
+    const r = spawnSync(process.execPath, [path.join(root, "bin", "ferrule.js"), "--version"], { encoding: "utf8" });
+    expect(r.status).toBe(0);
+    expect(r.stdout.trim()).toBe(`ferrule ${pkg.version}`);
+  });
+});
+
+describe("text format words and colour", () => {
+  test("info findings print as `note` (gcc's word); NO_COLOR and FORCE_COLOR decide colour", async () => {
+    const { useColor } = await import("../server/src/cli/main.js");
+    expect(useColor(true, {})).toBe(true);
+    expect(useColor(false, {})).toBe(false);
+    expect(useColor(true, { NO_COLOR: "1" })).toBe(false);
+    expect(useColor(false, { FORCE_COLOR: "1" })).toBe(true);
+    expect(useColor(false, { FORCE_COLOR: "0" })).toBe(false);
+    const root = path.resolve(__dirname, "..");
+    const r = spawnSync(process.execPath, [path.join(root, "bin", "ferrule.js"), "check", "test-fixtures/sonar-demo"], { cwd: root, encoding: "utf8", env: { ...process.env, FORCE_COLOR: "0", NO_COLOR: "1" } });
+    const words = [...r.stdout.matchAll(/^\S+:\d+:\d+: (\w+): /gm)].map((m) => m[1]);
+    expect(words).toContain("note");
+    expect(words.every((w) => w === "error" || w === "warning" || w === "note")).toBe(true);
+  });
+});
+
+describe("SARIF fingerprints", () => {
+  test("survive inserted lines: the same findings keep the same partialFingerprints", () => {
+    const root = path.resolve(__dirname, "..");
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-fp-"));
+    fs.cpSync(path.join(root, "test-fixtures/sonar-demo"), dir, { recursive: true });
+    const run = () => {
+      const r = spawnSync(process.execPath, [path.join(root, "bin", "ferrule.js"), "check", "--format", "sarif", "."], { cwd: dir, encoding: "utf8" });
+      const res = JSON.parse(r.stdout).runs[0].results as { ruleId: string; partialFingerprints: Record<string, string>; locations: { physicalLocation: { region: { startLine: number } } }[] }[];
+      return res;
+    };
+    const before = run();
+    expect(before.length).toBeGreaterThan(3);
+    for (const rel of ["include/sonar_kernels.h", "kernels/src/lib.rs"]) {
+      const f = path.join(dir, rel);
+      fs.writeFileSync(f, "\n\n" + fs.readFileSync(f, "utf8"));
+    }
+    const after = run();
+    const prints = (rs: typeof before) => rs.map((x) => `${x.ruleId}:${x.partialFingerprints["ferruleFinding/v1"]}`).sort();
+    expect(prints(after)).toEqual(prints(before));
+    // the lines did move: the fingerprints are not line-based
+    expect(after.map((x) => x.locations[0]!.physicalLocation.region.startLine)).not.toEqual(before.map((x) => x.locations[0]!.physicalLocation.region.startLine));
+    expect(new Set(prints(before)).size).toBe(before.length);
+  });
+});

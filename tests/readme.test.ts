@@ -7,9 +7,10 @@ import { FAMILIES, INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRES
 import { rulesMarkdown } from "../server/src/cli/rules-doc.js";
 
 const README = fs.readFileSync(path.resolve(__dirname, "../README.md"), "utf8");
+const RULES_DOC = fs.readFileSync(path.resolve(__dirname, "../docs/rules.md"), "utf8");
 
-test("README rules table is generated from the rule metadata (run npm run docs:rules)", () => {
-  expect(README).toContain(rulesMarkdown(FAMILIES, [INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON]));
+test("the rules table (docs/rules.md) is generated from the rule metadata (run npm run docs:rules)", () => {
+  expect(RULES_DOC).toContain(rulesMarkdown(FAMILIES, [INTERNAL, FILE_SKIPPED, FILE_ENCODING, UNKNOWN_MACRO, SUPPRESSION_WITHOUT_REASON]));
 });
 
 test("README starts with one paragraph, then the demo command and the test command", () => {
@@ -17,6 +18,13 @@ test("README starts with one paragraph, then the demo command and the test comma
   expect(blocks[1]).toContain("npx ferrule check test-fixtures/sonar-demo");
   expect(README).toMatch(/```(?:sh|bash)?\nnpm ci && npm test\n```/);
   expect(README).toContain("not a proof of memory safety");
+});
+
+test("the README is a user's page: at most about 300 lines, every docs/ link resolves", () => {
+  expect(README.split("\n").length).toBeLessThanOrEqual(300);
+  for (const m of README.matchAll(/\]\((docs\/[^)#]+|DEVELOPERS\.md)\)/g)) {
+    expect(fs.existsSync(path.resolve(__dirname, "..", m[1]!)), m[1]).toBe(true);
+  }
 });
 
 test("every rule id is unique", () => {

@@ -8,6 +8,7 @@
 // `maxFiles` files (a larger group is a chunk of its own), and each chunk is checked with a model
 // of its files only, so memory holds one chunk's facts at a time.
 
+import "./ppcond.js";
 import type { IncludeIndex } from "../model/includes.js";
 import type { ProjectInfo } from "../model/project.js";
 import { Model, type Side } from "../model/boundary.js";

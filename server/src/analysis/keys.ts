@@ -57,6 +57,9 @@ export function keysOf(f: FileFacts | undefined, local?: ReadonlySet<string>): K
   for (const fn of f.fns) {
     const own = (fn.body as { ownership?: RustOwnFacts } | undefined)?.ownership;
     if (fn.lang === "rust" && own) for (const c of own.calls) if (c.method || !plain.has(c.callee)) use.add("r:" + c.callee);
+    // a pointer cast to a crate struct as a call's argument: panic-across-c-abi asks whether any
+    // C file declares that struct (rules/ownership.ts, passOn)
+    if (fn.lang === "rust" && own) for (const c of own.calls) for (const a of c.args) if (a.cast) use.add("t:" + normName(a.cast));
   }
   for (const fn of f.fns) {
     // Only what the model links across files (as in Model's symbol table): not file-local

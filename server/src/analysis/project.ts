@@ -16,6 +16,8 @@ import * as path from "node:path";
 import { parse as parseToml } from "smol-toml";
 import { allOf, anyOf, type Cond } from "../model/conditions.js";
 import type { ModDecl } from "../model/types.js";
+import { tokenize } from "../extract/preproc/lexer.js";
+import { readSmallRegularFile } from "./textio.js";
 import type { CrateInfo, FileUnit, ProjectInfo } from "../model/project.js";
 
 const SKIP = new Set(["target", "node_modules", ".git", "out", "dist", ".cache", ".svn", ".hg", "__pycache__"]);
@@ -74,10 +76,10 @@ export function findProjectRoot(start: string): string {
   return best ?? (fs.statSync(start).isDirectory() ? start : path.dirname(start));
 }
 
-interface Scan { cargo: string[]; ccdb: string[]; cbuild: Map<string, string>; asm: boolean }
+interface Scan { cargo: string[]; ccdb: string[]; cbuild: Map<string, string>; asm: boolean; asmFiles: string[] }
 
 function scanTree(root: string): Scan {
-  const out: Scan = { cargo: [], ccdb: [], cbuild: new Map(), asm: false };
+  const out: Scan = { cargo: [], ccdb: [], cbuild: new Map(), asm: false, asmFiles: [] };
   let budget = 200_000; // entries visited at most (a huge tree is read partly rather than hang)
   const visit = (dir: string, depth: number) => {
     if (depth > 32 || budget <= 0) return;
@@ -98,11 +100,32 @@ function scanTree(root: string): Scan {
         if (d.name === "Cargo.toml") out.cargo.push(p);
         else if (d.name === "compile_commands.json") out.ccdb.push(p);
         else if (C_BUILD_FILES[d.name]) out.cbuild.set(dir, C_BUILD_FILES[d.name]!);
-        else if (ASM_EXT.test(d.name)) out.asm = true;
+        else if (ASM_EXT.test(d.name)) {
+          out.asm = true;
+          if (out.asmFiles.length < MAX_ASM_FILES) out.asmFiles.push(p);
+        }
       }
     }
   };
   visit(root, 0);
+  return out;
+}
+
+const MAX_ASM_FILES = 4000;
+
+/**
+ * The identifiers of the tree's assembly sources (read with the C tokenizer: names, labels and the
+ * arguments of `global`/`.globl`/export macros are identifiers there too). A C prototype whose name
+ * appears in them may be defined in assembly, which ferrule does not read. Bounded: at most
+ * MAX_ASM_FILES files of up to 2 MB each, regular files inside the root only.
+ */
+function asmIdentifiers(root: string, files: string[]): Set<string> {
+  const out = new Set<string>();
+  for (const f of files) {
+    let text: string;
+    try { text = readSmallRegularFile(f, { root, limit: 2 * 1024 * 1024 }); } catch { continue; }
+    for (const t of tokenize(text)) if (t.k === 1 /* K.Ident */) out.add(t.t.replace(/^_/, ""));
+  }
   return out;
 }
 
@@ -435,6 +458,7 @@ export function discoverProject(root: string, sources: readonly string[], modsOf
     else unit = "lib";
     const e = compiled.get(f);
     const u: FileUnit = { units: [unit], kind: "c" };
+    if (e) u.compiled = true;
     if (p) u.crate = p.name;
     const defines = { ...(settings.defines ?? {}), ...(e?.defines ?? {}) };
     if (Object.keys(defines).length) u.defines = defines;
@@ -444,6 +468,6 @@ export function discoverProject(root: string, sources: readonly string[], modsOf
   for (const c of crates.values()) for (const l of c.libs) builtLibs.add(l);
   const hasAsm = scan.asm || pkgs.some((p) => p.deps.some((d) => d.build && /^nasm/.test(d.pkgName ?? d.key)));
   const includeDirs = [...new Set([...compiled.values()].flatMap((e) => e.includes))];
-  const info: ProjectInfo = { root: root.endsWith(path.sep) ? root : root + path.sep, files, crates, hasAsm, builtLibs, defines: settings.defines ?? {}, includeDirs };
+  const info: ProjectInfo = { root: root.endsWith(path.sep) ? root : root + path.sep, files, crates, hasAsm, asmNames: asmIdentifiers(root, scan.asmFiles), builtLibs, defines: settings.defines ?? {}, includeDirs };
   return info;
 }

@@ -17,6 +17,7 @@ import type { Suppression } from "./suppress.js";
 import { loadFiles, loadPacked, type PreprocData } from "./parallel.js";
 import { HeapBudget } from "./memory.js";
 import { checkChunk, planChunks } from "./chunks.js";
+import "./ppcond.js";
 import type { Fix } from "../fixes/index.js";
 import { IncludeIndex } from "../model/includes.js";
 import { encodingNotice, readSource } from "./textio.js";

@@ -1,6 +1,7 @@
 // Output formats of `ferrule check`: text, JSON (version 1, fixed interface) and SARIF 2.1.0.
 
 import * as path from "node:path";
+import { createHash } from "node:crypto";
 import type { Finding, RuleMeta } from "../rules/api.js";
 
 export interface JsonFinding {
@@ -74,8 +75,25 @@ export function formatText(findings: JsonFinding[], color: boolean): string {
 
 const SARIF_LEVEL: Record<string, string> = { error: "error", warning: "warning", info: "note", hint: "note" };
 
+/**
+ * A fingerprint that survives moved lines: the rule, the file, and the message with its line and
+ * column numbers taken out (`sonar_kernels.h:19` → `sonar_kernels.h:#`), plus the number of earlier
+ * findings with the same three (two identical findings in one file stay two results).
+ */
+export function fingerprints(findings: JsonFinding[]): string[] {
+  const seen = new Map<string, number>();
+  return findings.map((f) => {
+    const msg = f.message.replace(/:\d+(?::\d+)?\b/g, ":#").replace(/\bline \d+\b/g, "line #");
+    const base = `${f.rule}\u0000${f.file.split(path.sep).join("/")}\u0000${msg}`;
+    const n = seen.get(base) ?? 0;
+    seen.set(base, n + 1);
+    return createHash("sha256").update(`${base}\u0000${n}`).digest("hex").slice(0, 32);
+  });
+}
+
 export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version: string, rootUri: string): string {
   const ruleIndex = new Map(rules.map((r, i) => [r.id, i]));
+  const prints = fingerprints(findings);
   const loc = (file: string, line: number, column: number, endLine?: number, endColumn?: number) => ({
     physicalLocation: {
       artifactLocation: { uri: file.split(path.sep).join("/"), uriBaseId: "%SRCROOT%" },
@@ -102,13 +120,15 @@ export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version:
             })),
           },
         },
+        invocations: [{ executionSuccessful: !findings.some((f) => f.rule === "internal-error") }],
         originalUriBaseIds: { "%SRCROOT%": { uri: rootUri.endsWith("/") ? rootUri : rootUri + "/" } },
-        results: findings.map((f) => {
+        results: findings.map((f, k) => {
           const res: Record<string, unknown> = {
             ruleId: f.rule,
             level: SARIF_LEVEL[f.severity],
             message: { text: f.message },
             locations: [loc(f.file, f.line, f.column, f.endLine, f.endColumn)],
+            partialFingerprints: { "ferruleFinding/v1": prints[k] },
           };
           const idx = ruleIndex.get(f.rule);
           if (idx !== undefined) res.ruleIndex = idx;

@@ -236,6 +236,10 @@ export interface RunIO {
 export async function run(argv: string[], io: RunIO): Promise<number> {
   let o: Opts;
   try {
+    if (argv[0] === "--version" || argv[0] === "-V" || argv[0] === "version") {
+      io.stdout(`ferrule ${VERSION}\n`);
+      return 0;
+    }
     o = parseArgs(argv);
   } catch (e) {
     if (e instanceof UsageError) {
@@ -376,3 +380,4 @@ export async function main(): Promise<void> {
     process.exitCode = 2;
   }
 }
+

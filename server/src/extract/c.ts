@@ -10,7 +10,7 @@ import { cFileExtractors } from "./hooks.js";
 const C_VISITED = [
   "preproc_include", "preproc_def", "preproc_call", "function_definition", "declaration", "field_declaration", "type_definition",
   "struct_specifier", "union_specifier", "enum_specifier", "call_expression", "static_assert_declaration", "class_specifier",
-  "template_declaration", "compound_statement",
+  "template_declaration", "compound_statement", "namespace_definition",
 ];
 
 const HEADER_RE = /\.(h|hpp|hh|hxx)$/i;
@@ -72,7 +72,7 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
       }
     } else if (body) {
       let pendingAlign: number | undefined;
-      for (const f of body.namedChildren) {
+      for (const f of membersOf(body)) {
         if (f.type === "ERROR") {
           // The C++ grammar reads `_Alignas(8) long x;` as ERROR(`_Alignas` `8`) + the field.
           const kids = f.namedChildren;
@@ -308,6 +308,10 @@ export function extractC(file: string, tree: Tree, lang: Lang): FileFacts {
       case "template_declaration":
         if (lang === "cpp") facts.cxxSyntax = true;
         return false;
+      case "namespace_definition":
+        // only C++ reads a namespace (its functions have mangled names); its items are read on
+        if (lang === "cpp") facts.cxxSyntax = true;
+        return;
       case "compound_statement":
         return false;
     }
@@ -410,6 +414,23 @@ function containsFunctionDeclarator(d: Node): boolean {
     n = n.childForFieldName("declarator") ?? (n.type === "parenthesized_declarator" ? n.namedChild(0) : null);
   }
   return false;
+}
+
+/**
+ * The member declarations of a struct/union body, with those inside conditional branches the
+ * preprocessor left undecided (`#ifdef __LP64__ … #else … #endif`): each such member carries its
+ * branch's condition (`Field.ppCond`), decided per target by the layout.
+ */
+function membersOf(body: Node): Node[] {
+  const out: Node[] = [];
+  const visit = (n: Node, depth: number) => {
+    for (const c of n.namedChildren) {
+      if (depth < 16 && /^preproc_(if|ifdef|else|elif|elifdef)$/.test(c.type)) visit(c, depth + 1);
+      else out.push(c);
+    }
+  };
+  visit(body, 0);
+  return out;
 }
 
 function hasCLinkage(n: Node): boolean {

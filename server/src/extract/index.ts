@@ -46,6 +46,28 @@ function collectSuppressions(t: Tree, facts: FileFacts): void {
   facts.extra.suppressions = out;
 }
 
+/**
+ * A header is read for C and C++ includers alike, with its `__cplusplus` conditionals left
+ * undecided; when they wrap `extern "C"` in ways the one reading cannot pair (`#ifdef
+ * __cplusplus class … extern "C" { #else … #endif`), the header is read once more as a C++
+ * translation unit sees it, and the prototypes that reading puts in an extern "C" block get C
+ * linkage (C++ [dcl.link]). Only for headers that spell `extern "C"` and have prototypes without it.
+ */
+function cxxLinkage(file: string, text: string, facts: FileFacts, opts: ExtractOptions, budget: number): void {
+  const env = opts.preproc || { targets: ALL_TRIPLES };
+  const pp = preprocess(file, text, { ...env, strip: opts.stripMacros, asCxx: true });
+  const t = parseText("cpp", pp.text, undefined, budget);
+  try {
+    setColumnMap(pp.changed ? pp.mapCol : undefined);
+    const cxx = extractC(file, t, "cpp");
+    const linked = new Set(cxx.fns.filter((f) => f.cLinkage).map((f) => `${f.name}@${f.range.line}`));
+    for (const f of facts.fns) if (!f.cLinkage && linked.has(`${f.name}@${f.range.line}`)) f.cLinkage = true;
+  } finally {
+    forgetWalks(t);
+    t.delete();
+  }
+}
+
 /** ERROR and MISSING nodes in the tree (at most the first 200,000 nodes of a cursor walk). */
 function countErrors(t: Tree): number {
   const root = t.rootNode;
@@ -204,8 +226,21 @@ export function extractFile(file: string, text: string, opts: ExtractOptions = {
     expandedTree = expanded;
     const facts = extractC(file, tree, useLang);
     facts.lang = lang === "c" && useLang === "cpp" ? "cpp" : lang;
+    if (pp && isHeader(file) && text.includes('extern "C"') && facts.fns.some((f) => !f.cLinkage && !f.isStatic)) {
+      cxxLinkage(file, text, facts, opts, rest());
+      setColumnMap(expanded ? pp.mapCol : undefined);
+    }
     if (pp) {
       facts.extra.preproc = { envKey: pp.envKey, reads: pp.reads };
+      if (pp.regions.length) {
+        // members under a condition only some targets meet (`#ifdef __LP64__`): kept with it
+        for (const t of facts.types) {
+          for (const fd of t.fields) {
+            const cs = pp.regions.filter((r) => r.line <= fd.range.line && fd.range.line <= r.endLine).map((r) => `(${r.cond})`);
+            if (cs.length) fd.ppCond = cs.join(" && ");
+          }
+        }
+      }
       if (pp.undecided.length) {
         // uses of a macro whose definition ferrule cannot decide: the names they may define
         const starts = lineStarts(text);

@@ -1,10 +1,10 @@
 // The boundary model: every file's facts linked into one view of the seam. Built from FileFacts
 // only (no file reads), so it is cheap to rebuild after a one-file change.
 
-import type { AbiType, FileFacts, FnDecl, IncludeRef, MacroItem, TypeDecl } from "./types.js";
+import type { AbiType, Field, FileFacts, FnDecl, IncludeRef, MacroItem, TypeDecl } from "./types.js";
 import { ALL_TRIPLES, type Triple } from "./targets.js";
 import { IncludeIndex } from "./includes.js";
-import { allOf, canHold, envsFor, type Cond, type CondEnv } from "./conditions.js";
+import { allOf, canHold, envsFor, ppCondOn, type Cond, type CondEnv } from "./conditions.js";
 import { archVariant, type FileUnit, type ProjectInfo } from "./project.js";
 
 export type Side = "rust" | "c";
@@ -51,15 +51,25 @@ export class Model {
   private readonly conds = new Map<object, Cond>();
   private readonly envCache = new Map<string, CondEnv[]>();
   private readonly programs = new Set<string>();
+  /** Folders holding exactly one program file (see the constructor). */
+  private readonly programFolders = new Set<string>();
 
   constructor(facts: Iterable<FileFacts>, config: ModelConfig = DEFAULT_CONFIG) {
     this.files = new Map();
     this.config = config;
     for (const f of facts) this.files.set(f.file, f.lang === "rust" ? this.built(f) : f);
+    const entriesByFolder = new Map<string, string[]>();
     for (const f of this.files.values()) {
-      // a C/C++ file that defines `main` is a program of its own (its own link unit)
-      if (f.lang !== "rust" && f.fns.some((fn) => fn.role === "def" && fn.name === "main" && !fn.isStatic)) this.programs.add(f.file);
+      // a C/C++ file that defines a program's entry point is a program of its own (its own link unit)
+      if (f.lang !== "rust" && f.fns.some((fn) => fn.role === "def" && PROGRAM_ENTRIES.has(fn.name) && !fn.isStatic)) {
+        this.programs.add(f.file);
+        const dir = folderOf(f.file);
+        entriesByFolder.set(dir, [...(entriesByFolder.get(dir) ?? []), f.file]);
+      }
     }
+    // a folder with exactly one program: its other C/C++ files are that program's own sources
+    // (a tool or a reference decoder beside the library), unless the build files say otherwise
+    for (const [dir, progs] of entriesByFolder) if (progs.length === 1) this.programFolders.add(dir);
     for (const f of this.files.values()) {
       const side: Side = f.lang === "rust" ? "rust" : "c";
       for (const fn of f.fns) {
@@ -164,6 +174,23 @@ export class Model {
     return this.config.project?.files.get(file);
   }
 
+  /**
+   * Whether a member of an aggregate exists on one target: a Rust field's `#[cfg]` (with the
+   * package's features, on that target) and a C member's undecided `#if` branch (decided with
+   * that target's predefined macros and the configured defines). Undecidable: kept.
+   */
+  memberOn(d: TypeDecl, f: Field, triple: Triple): boolean {
+    if (f.cfg) {
+      const env = this.envsOf(d.file).find((e) => e.triple === triple);
+      if (env && !canHold([this.condOf(d), f.cfg], [env])) return false;
+    }
+    if (f.ppCond) {
+      const defs = { ...(this.config.project?.defines ?? {}), ...(this.config.project?.files.get(d.file)?.defines ?? {}) };
+      if (ppCondOn(f.ppCond, triple, defs) === false) return false;
+    }
+    return true;
+  }
+
   /** The link units a file is compiled into (see model/project.ts). */
   unitsOf(file: string): string[] {
     if (this.programs.has(file)) return [`program:${file}`];
@@ -193,6 +220,16 @@ export class Model {
     return this.targets.filter((t) => out.has(t));
   }
 
+  /** One of two C/C++ files lies in a program's folder (see programFolders) and the other does
+   * not: without build files saying so, they are taken as sources of two different programs. */
+  private inOtherProgram(a: string, b: string): boolean {
+    const pj = this.config.project?.files;
+    if (pj?.get(a)?.compiled || pj?.get(b)?.compiled) return false;
+    const da = folderOf(a);
+    const db = folderOf(b);
+    return da !== db && (this.programFolders.has(da) || this.programFolders.has(db));
+  }
+
   /** Whether two items' files share a link unit. */
   shareUnit(a: string, b: string): boolean {
     const ub = this.unitsOf(b);
@@ -212,6 +249,7 @@ export class Model {
     const vb = this.variantOf(b.file);
     if (va && vb && va !== vb) return false;
     if (a.file === b.file && a.lang !== "rust" && b.lang !== "rust") return false;
+    if (a.lang !== "rust" && b.lang !== "rust" && this.inOtherProgram(a.file, b.file)) return false;
     const ca = this.condOf(a);
     const cb = this.condOf(b);
     if (ca || cb) {
@@ -295,7 +333,12 @@ export class Model {
     }
     if (t.k === "named") {
       if (side === "c" && this.definesBy.has(t.name)) return this.resolve(this.definesBy.get(t.name)!, side, depth + 1);
-      const decls = this.typeDecls(t.name, side);
+      const all = this.typeDecls(t.name, side);
+      // a type declared in a header is what the files including it see; one declared in a
+      // .c/.cpp file is local to that translation unit (C 6.2.1 scopes), so on the C side the
+      // header's declarations win when there are any
+      const inHeaders = side === "c" && all.length > 1 ? all.filter((d) => HEADER_RE.test(d.file)) : [];
+      const decls = inHeaders.length ? inHeaders : all;
       const alias = decls.find((d) => d.kind === "alias" && d.aliasOf);
       const agg = decls.find((d) => d.kind !== "alias");
       if (!agg && alias) {
@@ -378,3 +421,14 @@ export function mirrorNames(rust: string, c: string): boolean {
   for (let i = 1; i < parts.length; i++) if (parts.slice(i).join("").toLowerCase() === rn) return true;
   return false;
 }
+
+/** Names of a program's entry point: `main`, the Windows entry points, and libFuzzer's entry
+ * (`LLVMFuzzerTestOneInput`; each fuzz target is its own program — common practice). */
+const PROGRAM_ENTRIES = new Set(["main", "wmain", "WinMain", "wWinMain", "LLVMFuzzerTestOneInput"]);
+
+function folderOf(file: string): string {
+  const i = Math.max(file.lastIndexOf("/"), file.lastIndexOf("\\"));
+  return i < 0 ? "" : file.slice(0, i);
+}
+
+const HEADER_RE = /\.(h|hh|hpp|hxx|inl)$/i;

@@ -238,7 +238,7 @@ function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple)
   const lr = layoutOf(r, { model, side: "rust", triple });
   const lc = layoutOf(c, { model, side: "c", triple });
   if (lr.unknown || lc.unknown) {
-    if (r.k === "named" && c.k === "named" && !mirrorNames(r.name, c.name) && rd && cd) {
+    if (r.k === "named" && c.k === "named" && !namesAgree(r.name, c.name, cd) && rd && cd) {
       return { kind: "name", detail: `\`${r.name}\` in Rust but \`${describeC(c)}\` in C` };
     }
     return null;
@@ -259,10 +259,20 @@ function compareAggregates(model: Model, r: AbiType, c: AbiType, triple: Triple)
   // A #[repr(C)] Rust aggregate and a C aggregate with a body that meet at the same parameter, one
   // name's words all in the other's (`MsacAsmContext` / `MsacContext`), are a mirror pair
   // (rules/layout.ts compares them field by field); names with no word in common stay a warning.
-  if (r.k === "named" && c.k === "named" && !(mirrored && relatedNames(r.name, c.name)) && !mirrorNames(r.name, c.name) && rd && cd && rd.kind !== "enum" && cd.kind !== "enum") {
+  if (r.k === "named" && c.k === "named" && !(mirrored && relatedNames(r.name, c.name)) && !namesAgree(r.name, c.name, cd) && rd && cd && rd.kind !== "enum" && cd.kind !== "enum") {
     return { kind: "name", detail: `\`${r.name}\` in Rust but \`${describeC(c)}\` in C (same size, different types)` };
   }
   return null;
+}
+
+/**
+ * A Rust name and a C type agree when the Rust name is a mirror name of any of the C type's
+ * names: the name used, the declaration's typedef name and its tag (`typedef struct TagScan {…}
+ * Scan;` is one type under two names; `struct scan_s` with `typedef … scan;` the same).
+ */
+function namesAgree(rust: string, cName: string, cd: { name: string; tag?: string } | undefined): boolean {
+  const names = [cName, cd?.name, cd?.tag].filter((x): x is string => !!x);
+  return names.some((n) => mirrorNames(rust, n) || mirrorNames(rust, n.replace(/^(struct|union|enum)\s+/, "").replace(/_s$/, "")));
 }
 
 /** The words of a type name: CamelCase and snake_case split, lower case, no `struct`/`_t`. */

@@ -299,3 +299,17 @@ export function condText(c: Cond): string {
     default: return `${c.k}(${c.of.map(condText).join(", ")})`;
   }
 }
+
+/**
+ * Decides a C preprocessor condition (a member's `ppCond`) on one target: true, false, or
+ * undefined when it cannot be decided. Registered by the analysis layer (which owns the
+ * preprocessor); without it every such member is kept.
+ */
+export type PpCondEvaluator = (cond: string, triple: string, defines: Readonly<Record<string, string>>) => boolean | undefined;
+let ppEval: PpCondEvaluator | undefined;
+export function setPpCondEvaluator(f: PpCondEvaluator | undefined): void {
+  ppEval = f;
+}
+export function ppCondOn(cond: string, triple: string, defines: Readonly<Record<string, string>>): boolean | undefined {
+  return ppEval?.(cond, triple, defines);
+}

@@ -228,7 +228,15 @@ export function declLayout(d: TypeDecl, ctx: LayoutCtx, depth = ctx.depth ?? 0):
   return l;
 }
 
-function computeDecl(d: TypeDecl, ctx: LayoutCtx, depth: number): Layout {
+/** The members an aggregate has on the context's target (see Model.memberOn). */
+export function fieldsOn(d: TypeDecl, ctx: { model: LayoutCtx["model"]; triple: Triple }): TypeDecl["fields"] {
+  if (!d.fields.some((f) => f.cfg || f.ppCond)) return d.fields;
+  return d.fields.filter((f) => ctx.model.memberOn(d, f, ctx.triple));
+}
+
+function computeDecl(d0: TypeDecl, ctx: LayoutCtx, depth: number): Layout {
+  const fields = fieldsOn(d0, ctx);
+  const d = fields === d0.fields ? d0 : { ...d0, fields };
   const side: Side = d.lang === "rust" ? "rust" : "c";
   const c2 = ctx.side === side ? ctx : { ...ctx, side };
   if (d.kind === "opaque") return UNKNOWN(`\`${d.name}\` is opaque (no body)`);

@@ -20,6 +20,8 @@ export interface FileUnit {
   /** How the file is built: a library, a program of its own, a build script, or not reached
    * from any target root of its package. */
   kind?: "lib" | "bin" | "example" | "test" | "bench" | "build" | "c" | "unreached";
+  /** C/C++: listed in compile_commands.json (its link unit is the build's, not a guess). */
+  compiled?: boolean;
   /** C/C++: `-D` defines from compile_commands.json and the configuration. */
   defines?: Record<string, string>;
 }
@@ -44,6 +46,8 @@ export interface ProjectInfo {
   crates: Map<string, CrateInfo>;
   /** The tree holds assembly sources (.S/.asm) or a build that assembles them. */
   hasAsm: boolean;
+  /** Identifiers of the tree's assembly sources (a leading `_` dropped): names they may define. */
+  asmNames?: Set<string>;
   /** Libraries the tree builds (package `links`, library target names, C build targets). */
   builtLibs: Set<string>;
   /** Configured defines (`defines = {…}` in .ferrule.toml), for every C/C++ file. */

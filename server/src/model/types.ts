@@ -109,6 +109,9 @@ export interface Field {
   range: Range;
   /** C bit-field width, when present. */
   bits?: number;
+  /** C: the member lies in a conditional branch the preprocessor could not decide for all
+   * targets; the branch's condition (a C expression), decided per target by the layout. */
+  ppCond?: string;
   /** C: the comment directly above the field or after it on its line (without comment markers). */
   doc?: string;
   /** C: a nullability qualifier `_Nullable` on the field itself (not on a callback's parameters). */

@@ -323,9 +323,13 @@ const IN_NAME = /(^|_)(in|input|inputs|src|source|x|samples)(_|$|\d)|^in[A-Z_]|^
 function checkCalls(model: Model, out: Finding[]): void {
   for (const f of model.files.values()) {
     if (f.lang === "rust") continue;
+    // a call to a name this file declares `static` is a call to that function (C 6.2.2: internal
+    // linkage), not to the seam symbol of the same name
+    const local = new Set(f.fns.filter((x) => x.isStatic).map((x) => x.name));
     for (const cs of f.calls) {
       if (cs.recv) continue;
       const sym = cs.callee.split("::").pop()!;
+      if (cs.callee === sym && local.has(sym)) continue;
       const g = model.symbols.get(sym);
       if (!g || !g.rust.length) continue;
       const k = contractOf(model, sym);

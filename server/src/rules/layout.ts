@@ -20,7 +20,7 @@
 import type { Model } from "../model/boundary.js";
 import { normName } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range, SourceAssert, TypeDecl } from "../model/types.js";
-import { declLayout, layoutOf, spellType, type FieldLayout, type Layout } from "../model/layout.js";
+import { declLayout, fieldsOn, layoutOf, spellType, type FieldLayout, type Layout } from "../model/layout.js";
 import { compareOn } from "../model/compare.js";
 import { C_SPELLING, RUST_SPELLING, scalarInfo, shortTriple, type ScalarKind, type Triple } from "../model/targets.js";
 import { finding, targetPhrase, type Finding, type RuleFamily, type RuleMeta } from "./api.js";
@@ -115,6 +115,28 @@ function innerPair(model: Model, r: AbiType, c: AbiType, rFrom?: string, cFrom?:
   return { r: rd, c: cd, byValue };
 }
 
+/** Whether a header sees a file's declarations: the same file, or one it includes (transitively). */
+function visibleFrom(model: Model, header: string, file: string): boolean {
+  const seen = new Set([header]);
+  const queue = [header];
+  for (let k = 0; k < queue.length && k < 500; k++) {
+    const f = queue[k]!;
+    if (f === file) return true;
+    for (const inc of model.files.get(f)?.includes ?? []) {
+      const t = model.includeTarget(inc);
+      if (t && !seen.has(t)) { seen.add(t); queue.push(t); }
+    }
+  }
+  return false;
+}
+
+const C_HEADER = /\.(h|hh|hpp|hxx|inl)$/i;
+
+/** A field name as Rust and C spell it alike (`r#type` / `type`, `sampleRate` / `sample_rate`). */
+function fieldKey(n: string): string {
+  return n.replace(/^r#/, "").replace(/_/g, "").toLowerCase();
+}
+
 const pairsCache = new WeakMap<Model, Pair[]>();
 
 /** The mirror pairs of a model (computed once per model: the signatures family asks too). */
@@ -146,7 +168,10 @@ function computePairs(model: Model): Pair[] {
       if (f.lang === "rust") rustAggs.push(d);
       else {
         const arr = cByNorm.get(normName(d.name)) ?? [];
-        if (!arr.some((x) => x.name === d.name)) arr.push(d);
+        const same = arr.findIndex((x) => x.name === d.name);
+        if (same < 0) arr.push(d);
+        // one name declared in a header and in a .c file: the header's is the one other files see
+        else if (!C_HEADER.test(arr[same]!.file) && C_HEADER.test(d.file)) arr[same] = d;
         cByNorm.set(normName(d.name), arr);
       }
     }
@@ -164,17 +189,23 @@ function computePairs(model: Model): Pair[] {
   // 2. function signatures
   for (const g of model.symbols.values()) {
     if (!g.rust.length || !g.c.length) continue;
+    // a function both a C file defines and Rust exports: two implementations of one API (a C
+    // original beside its Rust port, one chosen by the build). What callers see is the header:
+    // a struct it leaves opaque (its body only in the C implementation's own files) is that
+    // implementation's private state, not the Rust port's mirror
+    const dual = g.c.some((f) => f.role === "def") && g.rust.some((f) => f.role === "export" && f.noMangle && f.isExtern);
     const protos = g.c.filter((f) => f.role === "proto" && f.inHeader);
     const cands = protos.length ? protos : g.c;
     for (const r of g.rust) {
       for (const c of cands) {
+        const seen = (d: TypeDecl) => !dual || (c.inHeader && visibleFrom(model, c.file, d.file));
         const n = Math.min(r.params.length, c.params.length);
         for (let i = 0; i < n; i++) {
           const p = innerPair(model, r.params[i]!.type, c.params[i]!.type, r.file, c.file);
-          if (p) add(p.r, p.c, `both are parameter ${i + 1} of \`${g.symbol}\``, p.byValue);
+          if (p && seen(p.c)) add(p.r, p.c, `both are parameter ${i + 1} of \`${g.symbol}\``, p.byValue);
         }
         const p = innerPair(model, r.ret, c.ret, r.file, c.file);
-        if (p) add(p.r, p.c, `both are the return type of \`${g.symbol}\``, p.byValue);
+        if (p && seen(p.c)) add(p.r, p.c, `both are the return type of \`${g.symbol}\``, p.byValue);
       }
     }
   }
@@ -185,6 +216,9 @@ function computePairs(model: Model): Pair[] {
       if (p.rust.kind === "enum" || p.c.kind === "enum") continue;
       const n = Math.min(p.rust.fields.length, p.c.fields.length);
       for (let i = 0; i < n; i++) {
+        // only fields of the same name: where the names part, the two structs part too (the
+        // parent pair's own finding says so), and what follows are not each other's mirrors
+        if (fieldKey(p.rust.fields[i]!.name) !== fieldKey(p.c.fields[i]!.name)) break;
         const q = innerPair(model, p.rust.fields[i]!.type, p.c.fields[i]!.type, p.rust.file, p.c.file);
         if (!q) continue;
         const key = `${q.r.id}|${q.c.id}`;
@@ -192,6 +226,9 @@ function computePairs(model: Model): Pair[] {
         add(q.r, q.c, `they are field ${i + 1} of \`${p.rust.name}\` / \`${p.c.name}\``, q.byValue && p.byValueOnly);
         const np = pairs.get(key)!;
         if (p.weak && !seamTypes(model).has(q.r.id)) np.weak = true;
+        // a C struct whose body lives in a .c file is that translation unit's private state:
+        // met through another struct's field, not through a seam function, it is no sure mirror
+        if (!C_HEADER.test(q.c.file)) np.weak = true;
         queue.push(np);
       }
     }
@@ -212,7 +249,7 @@ function computePairs(model: Model): Pair[] {
     if (pairedRust.has(d.id)) continue; // a signature pairs it with another C type: that one is its mirror
     add(d, cs[0]!, "they have the same name", false);
     const np = pairs.get(key)!;
-    if (!seamTypes(model).has(d.id)) np.weak = true;
+    if (!seamTypes(model).has(d.id) || !C_HEADER.test(cs[0]!.file)) np.weak = true;
     named.push(np);
   }
   nest(named);
@@ -248,6 +285,8 @@ function seamTypes(model: Model): Set<string> {
     }
   };
   for (const g of model.symbols.values()) {
+    // (two implementations of one function — see computePairs — are not a seam crossing)
+    if (g.c.some((f) => f.role === "def") && g.rust.some((f) => f.role === "export" && f.noMangle && f.isExtern)) continue;
     for (const f of g.rust) {
       if (f.role !== "export" && f.role !== "import") continue;
       for (const p of f.params) visit(p.type, f.file, 0);
@@ -265,7 +304,9 @@ function weaken(p: Pair, out: Finding[], from: number): void {
     const f = out[i]!;
     if (f.severity === "info") continue;
     f.severity = "info";
-    f.message += ` — paired by name only: no seam function passes \`${p.rust.name}\` or \`${p.c.name}\`, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`;
+    f.message += C_HEADER.test(p.c.file)
+      ? ` — paired by name only: no seam function passes \`${p.rust.name}\` or \`${p.c.name}\`, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`
+      : ` — \`${p.c.name}\` is private to ${p.c.file.split(/[\\/]/).pop()} and no seam function passes it, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`;
   }
 }
 
@@ -373,10 +414,11 @@ function leaves(model: Model, t: AbiType, side: "rust" | "c", triple: Triple, ba
     out.push({ o: base, size: l.size, cls: "union" });
     return true;
   }
-  if (d.kind !== "struct" || !l.fields || d.fields.some((f) => f.bits !== undefined)) return false;
-  for (let i = 0; i < d.fields.length; i++) {
+  const fs = fieldsOn(d, { model, triple });
+  if (d.kind !== "struct" || !l.fields || fs.some((f) => f.bits !== undefined)) return false;
+  for (let i = 0; i < fs.length; i++) {
     const fl = l.fields[i];
-    if (!fl || !leaves(model, d.fields[i]!.type, side, triple, base + fl.offset, out, d.file, depth + 1)) return false;
+    if (!fl || !leaves(model, fs[i]!.type, side, triple, base + fl.offset, out, d.file, depth + 1)) return false;
   }
   return true;
 }
@@ -419,8 +461,8 @@ function diffOn(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): Field
 }
 
 function diffFields(model: Model, p: Pair, t: Triple, lr: Layout, lc: Layout): FieldDiff | undefined {
-  const rf = p.rust.fields;
-  const cf = p.c.fields;
+  const rf = fieldsOn(p.rust, { model, triple: t });
+  const cf = fieldsOn(p.c, { model, triple: t });
   const bits = cf.some((f) => f.bits !== undefined);
   const n = Math.min(rf.length, cf.length);
   if (!bits) {
@@ -535,17 +577,28 @@ function checkPair(model: Model, p: Pair, out: Finding[], reprReported: Set<stri
   }
 }
 
+/** A struct of one integer field laid out as that field (`#[repr(transparent)]` or `#[repr(C)]`). */
+function isIntNewtype(model: Model, d: TypeDecl): boolean {
+  if (!(d.repr.transparent || d.repr.c) || d.fields.length !== 1) return false;
+  const t = model.resolve(d.fields[0]!.type, "rust");
+  return t.k === "scalar" && !["bool", "f32", "f64", "float", "double", "ldouble", "rust_char"].includes(t.s);
+}
+
 function checkEnumPair(model: Model, p: Pair, out: Finding[]): void {
   const rd = p.rust;
   const cd = p.c;
   const related = [{ range: cd.nameRange, message: `C declaration of \`${cd.name}\`` }];
-  if (rd.kind !== "enum" || cd.kind !== "enum") {
+  // an integer newtype (`#[repr(transparent)] struct Mode(u32);` with associated constants) is a
+  // common Rust spelling of a C enum that C may extend (common practice): only its size matters
+  const newtype = rd.kind === "struct" && cd.kind === "enum" && isIntNewtype(model, rd);
+  if (!newtype && (rd.kind !== "enum" || cd.kind !== "enum")) {
     out.push(finding(ENUM_MISMATCH, rd.nameRange, `\`${rd.name}\` is a Rust ${rd.kind} but C \`${cd.name}\` is a ${cd.kind} (${p.via})`, related));
     return;
   }
-  const re = withoutCount(rd.enumerators);
-  const ce = withoutCount(cd.enumerators);
-  let reported = false;
+  const re = newtype ? [] : withoutCount(rd.enumerators);
+  const ce0 = newtype ? [] : cd.enumerators;
+  const ce = withoutCount(ce0);
+  let reported = newtype;
   const byName = membersByName(re, ce);
   if (byName) {
     // every Rust variant has a C enumerator of the same name (once each side's common prefix is

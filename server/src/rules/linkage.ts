@@ -37,6 +37,10 @@ export const linkageFamily: RuleFamily = {
         if (!facts) continue;
         if (facts.lang === "cpp" && !p.inHeader) {
           if (p.role === "def" && !rustCalls) continue; // a C++ function of the same name that nobody imports
+          // declared earlier with C linkage in a header this file includes: the later declaration
+          // or definition keeps that linkage (C++ [dcl.link]: a declaration without a linkage
+          // specification after one with it does not change the function's linkage)
+          if (g.c.some((q) => q !== p && q.inHeader && q.cLinkage && model.includersOf(q.file).includes(p.file))) continue;
           out.push(finding(CXX_LINKAGE, p.nameRange, `\`${p.name}\` is declared in a C++ file without extern "C": C++ looks for a mangled name and the link fails`, [], { data: { fn: p.id } }));
           continue;
         }

@@ -411,6 +411,10 @@ function fnRel(fn: FnDecl): Related {
   return { range: fn.nameRange, message: `\`${fn.name}\`` };
 }
 
+/** Comment text that documents a transfer of ownership to the callee (common practice in C API
+ * comments): "takes ownership", "owned by", "will be freed together with", "must not be freed". */
+const TRANSFER_DOC = /\b(takes?\s+(full\s+|over\s+)?ownership|ownership\s+(is\s+)?(passes|passed|transferred|moves|moved)|owned\s+by|(will\s+be|is|gets)\s+freed\s+(automatically|together|with|by|when|along)|(must|should|do|does)\s+not\s+(be\s+)?free(d)?|consumes\s+(the|its|this))\b/i;
+
 function cProtoOf(model: Model, symbol: string): FnDecl | undefined {
   const g = model.symbols.get(symbol);
   return g?.c.find((f) => f.role === "proto" && f.inHeader) ?? g?.c.find((f) => f.role === "proto") ?? g?.c[0];
@@ -453,7 +457,11 @@ function checkRust(model: Model, om: OwnershipModel, out: Finding[]): void {
       }
       const o = own(r.fn)!;
       const makesNew = om.ctors.has(r.fn.symbol);
-      if (!OWNER_NAME.test(r.fn.name) && !makesNew) {
+      // a Box parameter put in ManuallyDrop / mem::forget / Box::into_raw is not freed on return;
+      // a comment on either side that says the call takes the object over is a documented transfer
+      const kept = r.byParam && o.reLeaks.some((l) => l.ident === pname);
+      const documented = TRANSFER_DOC.test(`${r.fn.doc ?? ""}\n${cProtoOf(model, r.fn.symbol)?.doc ?? ""}`);
+      if (!OWNER_NAME.test(r.fn.name) && !makesNew && !kept && !documented) {
         const borrowsToo = o.borrows.length > 0;
         out.push(finding(BORROWER_RELEASES, r.site,
           `\`${r.fn.symbol}\` looks like a method on the handle${borrowsToo ? " (it also borrows)" : ""} but takes ownership of \`${pname}\`${r.chain.length ? ` (in \`${r.chain.join("` → `")}\`)` : ""}: the handle is freed when it returns while the caller still holds it`,
@@ -558,6 +566,30 @@ function effLevel(fn: FnDecl, p: RustPanic, active: number): "warning" | "info" 
   return "warning";
 }
 
+/** Bits of the parameters of an exported Rust function that are handles to objects the crate
+ * made: the Rust parameter points to a named Rust struct, and every C declaration of the
+ * function takes there a pointer to a struct C leaves incomplete (declared, never defined). */
+export function opaqueHandleParams(model: Model, fn: FnDecl): number {
+  const cs = model.symbols.get(fn.symbol)?.c ?? [];
+  if (!cs.length) return 0;
+  let mask = 0;
+  fn.params.forEach((p, i) => {
+    if (i >= 30 || p.type.k !== "ptr" || p.type.to.k !== "named") return;
+    const rt = model.aggregate(p.type.to, "rust", fn.file);
+    if (!rt || rt.kind !== "struct") return;
+    const opaque = cs.every((c) => {
+      const ct = c.params[i] ? model.resolve(c.params[i]!.type, "c") : undefined;
+      if (ct?.k !== "ptr") return false;
+      const to = model.resolve(ct.to, "c");
+      if (to.k !== "named") return false;
+      const agg = model.aggregate(to, "c", c.file);
+      return !agg || agg.kind === "opaque";
+    });
+    if (opaque) mask |= 1 << i;
+  });
+  return mask;
+}
+
 function levelOf(p: Site): "warning" | "info" {
   return p.eff;
 }
@@ -606,11 +638,27 @@ function checkPanics(model: Model, out: Finding[]): void {
       // an assert whose bounds on the parameters the caller's guards already give
       !(p.needs && given && p.needs.every((nd) => (given[nd.param] ?? -Infinity) >= nd.ge)))
       .map((p) => ({ ...p, eff: effLevel(fn, p, active) }));
-  /** The callee's parameters that carry C's values: those whose argument reads an active one. */
+  /** The callee's parameters that carry C's values: those whose argument reads an active one.
+   * A pointer cast to a Rust struct no C file declares (`file.cast::<GzState>()`) carries none:
+   * C cannot know that struct's members, so what they hold is what the crate put there. */
   const passOn = (c: RustCall, active: number): number => {
     let m = 0;
-    (c.argTaint ?? []).forEach((t, j) => { if (j < 30 && (t & active)) m |= 1 << j; });
+    const off = c.method ? 1 : 0;
+    (c.argTaint ?? []).forEach((t, j) => {
+      const cast = c.args[j + off]?.cast;
+      if (cast && crateOnly(cast)) return;
+      if (j < 30 && (t & active)) m |= 1 << j;
+    });
     return m;
+  };
+  const crateOnlyMemo = new Map<string, boolean>();
+  const crateOnly = (name: string): boolean => {
+    let v = crateOnlyMemo.get(name);
+    if (v === undefined) {
+      v = model.typeDecls(name, "rust").some((d) => d.kind === "struct") && model.typeDecls(name, "c").length === 0;
+      crateOnlyMemo.set(name, v);
+    }
+    return v;
   };
   type Hit = { chain: FnDecl[]; site: Site };
   const memo = new Map<string, Hit | null>();
@@ -643,8 +691,11 @@ function checkPanics(model: Model, out: Finding[]): void {
     if (fn.lang !== "rust" || fn.role !== "export" || !fn.isExtern || fn.abi === "Rust" || PANIC_ABIS_UNWIND.test(fn.abi)) continue;
     const o = own(fn);
     if (!o) continue;
-    // every parameter of the exported function is C's
-    const all = -1;
+    // every parameter of the exported function is C's, except a handle C holds only as a
+    // pointer to an incomplete type: the object behind it is the crate's (made by its own
+    // constructor), C cannot write its fields (C11 6.2.5p1, 6.5.2.3: no member access through
+    // a pointer to an incomplete struct type)
+    const all = -1 & ~opaqueHandleParams(model, fn);
     const direct = live(fn, o, all);
     const viaHelpers: { call: Range; chain: FnDecl[]; site: Site }[] = [];
     for (const c of o.calls) {
@@ -1103,6 +1154,24 @@ function checkClasses(model: Model, om: OwnershipModel, ci: CIndex, out: Finding
         continue;
       }
       if (!rel.inDtor) continue;
+      // A member function that releases the handle and leaves the field holding it: the
+      // destructor releases it again when that function ran first (double release on two paths).
+      if (dtor) {
+        const inDtor = releasedFields(ci, om, name, dtor, fields).get(f.name);
+        for (const fl of flows) {
+          if (fl === dtor || fl.state !== "user" || (fl.member && fl.member !== "method")) continue;
+          const r = releasedFields(ci, om, name, fl, fields).get(f.name);
+          if (!inDtor || !r) continue;
+          const cleared = fl.events.some((e) => (e.k === "assign" && keyOf(e.lhs, fl, fields) === `this.${f.name}` && !before(e.range, r.range)) ||
+            (e.k === "swap" && [e.a, e.b].some((x) => keyOf(x, fl, fields) === `this.${f.name}`)) ||
+            (e.k === "reset" && keyOf(e.obj, fl, fields) === `this.${f.name}`));
+          if (cleared) continue;
+          out.push(finding(USE_AFTER_RELEASE, r.range,
+            `\`${name}::${fl.name}\` releases \`${f.name}\` (\`${r.by}\`) but leaves the field holding it: the destructor releases it again when \`${fl.name}\` ran first (double release); set \`${f.name}\` to nullptr after the release`,
+            [{ range: inDtor.range, message: `the destructor releases \`${f.name}\` here` }],
+            { data: { cls: name, field: f.name, member: fl.name } }));
+        }
+      }
       // Copyability (C++ [class.copy.ctor]/6, [class.copy.assign]/2): an implicit copy member is
       // deleted when the class declares a move constructor or move assignment.
       const has = (k: string) => members.filter((m) => m.kind === k);

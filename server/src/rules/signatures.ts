@@ -119,10 +119,31 @@ function constSeverity(model: Model, rust: FnDecl, c: FnDecl, i: number, d: Grou
     if (releasesParam(rust, rp.name)) return null;
     if (d.rustWrites) return "error";
     if (d.detail.startsWith("at the inner pointer level") || recordPointee(model, cp.type)) return "info";
-    return "warning";
+    // a read-only Rust pointer for a buffer C expects filled
+    return writtenThrough(rust, c, i) ? "warning" : "info";
   }
-  if (rust.role === "import") return d.rustWrites ? "info" : "warning";
+  if (rust.role === "import") {
+    if (d.rustWrites) return "info";
+    // Rust lends read-only memory: a risk where the C function writes through it
+    return writtenThrough(rust, c, i) ? "warning" : "info";
+  }
   return d.rustWrites ? "error" : "warning";
+}
+
+/**
+ * Whether the names or the comment say the function writes through parameter i (common
+ * practice): the parameter is named as an output (`out`, `dst`, `dest`, `result`, …), the
+ * function's name has a verb that fills a buffer (`read`, `fill`, `decode`, `scale`, …), or its
+ * comment says so (`fills`, `writes`, `in place`, `stores`). Without any of these a writable C
+ * pointer Rust only reads is advice (the header could say const), not a risk.
+ */
+function writtenThrough(rust: FnDecl, c: FnDecl, i: number): boolean {
+  const names = [c.params[i]?.name, rust.params[i]?.name];
+  if (names.some((n) => !!n && /(^|_)(out|outp|output|outbuf|dst|dest|destination|result|res)(_|$|\d)|^(out|dst|dest)[A-Z0-9]/i.test(n))) return true;
+  const words = (n: string) => n.replace(/([a-z0-9])([A-Z])/g, "$1_$2").toLowerCase().split(/_+/);
+  const WRITERS = /^(read|fill|get|decode|scale|write|copy|store|load|recv|receive|zero|clear|normali[sz]e|convert|render|pull|pop|dequeue|peek|query|fetch|export|dump|snapshot|encode|compress|decompress|inflate|deflate|mix|sum|accumulate)$/;
+  if ([c.name, rust.name].some((n) => words(n).some((w) => WRITERS.test(w)))) return true;
+  return /\b(fill(s|ed)?|writes?|written|in[ -]place|stores?|overwrites?|outputs?)\b/i.test(`${c.doc ?? ""} ${rust.doc ?? ""}`);
 }
 
 export function compareSignatures(model: Model, rust: FnDecl, c: FnDecl): Finding[] {
@@ -154,7 +175,9 @@ export function compareSignatures(model: Model, rust: FnDecl, c: FnDecl): Findin
       const d = diffs.find((x) => out[k]!.data?.diff === x.kind && out[k]!.message.includes(x.detail));
       const s = d && sev.get(d);
       if (s) out[k]!.severity = s;
-      if (s === "info" && d) out[k]!.message += d.rustWrites ? "; C promises not to write through it, so nothing Rust lends is at risk (advice)" : "; Rust only reads through it, so nothing C holds changes (advice: the header could say const)";
+      if (s === "info" && d) out[k]!.message += d.rustWrites ? "; C promises not to write through it, so nothing Rust lends is at risk (advice)"
+        : rust.role === "import" ? "; neither the names nor the comment say C writes through it, so the memory Rust lends read-only stays unchanged (advice: the header could say const)"
+        : "; Rust only reads through it, so nothing C holds changes (advice: the header could say const)";
     }
   }
   report(out, model, compareTypes(model, rust.ret, c.ret, targets), "return type", rust, c, rust.retRange ?? rust.nameRange, c.retRange ?? c.nameRange, { ret: true }, true);

@@ -141,6 +141,44 @@ function boxedName(t: Node | null | undefined, depth = 0): string | undefined {
   return arg.type === "type_identifier" || arg.type === "scoped_type_identifier" ? lastSeg(arg.text) : undefined;
 }
 
+/** Through unsafe blocks, blocks and parentheses to the value an expression yields. */
+function yielded(n: Node | null | undefined): Node | null | undefined {
+  let u = n;
+  for (let i = 0; u && i < 6; i++) {
+    if (u.type === "parenthesized_expression") u = u.namedChild(0);
+    else if (u.type === "unsafe_block" || u.type === "block") {
+      const b = u.type === "unsafe_block" ? u.namedChildren.find((c) => c.type === "block") : u;
+      const kids = b?.namedChildren.filter((c) => !c.type.endsWith("comment")) ?? [];
+      u = kids[kids.length - 1];
+      if (u?.type === "expression_statement") u = u.namedChild(0);
+    } else break;
+  }
+  return u;
+}
+
+/** `Box::from_raw(…)` / `Arc::from_raw` / `Rc::from_raw` as the value of an expression. */
+function fromRawIn(n: Node | null | undefined): boolean {
+  const u = yielded(n);
+  if (u?.type !== "call_expression") return false;
+  const pp = pathParts(u.childForFieldName("function")!);
+  return !!pp && ["Box", "Arc", "Rc"].includes(pp.head) && pp.name === "from_raw";
+}
+
+/** Whether a call is the argument of `ManuallyDrop::new(…)` (through unsafe blocks and parentheses). */
+function inManuallyDrop(n: Node): boolean {
+  let c: Node = n;
+  let p = n.parent;
+  for (let i = 0; p && i < 6; i++, c = p, p = p.parent) {
+    if (p.type === "arguments") {
+      const call = p.parent;
+      const pp = call?.type === "call_expression" ? pathParts(call.childForFieldName("function")!) : undefined;
+      return !!pp && pp.head === "ManuallyDrop" && pp.name === "new" && fromRawIn(c);
+    }
+    if (!["unsafe_block", "block", "parenthesized_expression", "expression_statement"].includes(p.type)) return false;
+  }
+  return false;
+}
+
 function pointeeName(typeText: string | undefined): string | undefined {
   if (!typeText) return undefined;
   // `*mut Det`, `*const Det`, `Det` — the type's own text, taken from the tree by the caller.
@@ -359,7 +397,7 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
           const d = sense.assertDeps(n, mac);
           if (d !== "const") {
             site(kind, `${mac}!`, n, "warning", d ? sense.taintOfNames(d, n.startIndex) : undefined);
-            const needs = mac === "assert" ? sense.assertNeeds(n, paramNames) : undefined;
+            const needs = mac === "assert" || mac === "assert_ne" ? sense.assertNeeds(n, paramNames, mac) : undefined;
             if (needs) own.panics[own.panics.length - 1]!.needs = needs;
           }
         } else if (kind && !sense.armUnreachable(n)) site(kind, `${mac}!`, n, "warning", sense.branchTaint(n));
@@ -411,7 +449,9 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
     const prot = isProtected(n);
     sense.onCall(n, range);
     const under = sense.underOf(n);
-    const argTaint = args.map((a) => (sense.isConstExpr(a) ? 0 : sense.taintOf(a)));
+    // an argument made by a crate function (`Frames::new(buf, n)?`) carries that function's
+    // value, as a `let` of it does (PanicSense.isTransform)
+    const argTaint = args.map((a) => (sense.isConstExpr(a) || sense.isTransform(a) ? 0 : sense.taintOf(a)));
     const argGe = sense.argLowerBounds(n, args);
     let fe = f;
     if (f.type === "generic_function") fe = f.childForFieldName("function") ?? f;
@@ -510,6 +550,9 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         // a field of a struct being built (`Image { inner: ManuallyDrop::new(x) }`) is how that
         // struct manages its field's drop, not a value handed to C
         if (n.parent?.type === "field_initializer") return;
+        // `ManuallyDrop::new(Box::from_raw(p))`: a look at the object behind p that never drops
+        // it (std docs, `ManuallyDrop`): neither made nor released here
+        if (fromRawIn(a0)) return;
         own.produces.push({ how: "manuallydrop", range, protected: prot });
         const r = argRef(a0);
         if (r.ident) own.reLeaks.push({ ident: r.ident, range });
@@ -545,6 +588,11 @@ function extractRustFn(fnNode: Node, fn: FnDecl, facts: FileFacts): void {
         return;
       }
       if (["Box", "Arc", "Rc", "CString"].includes(head) && name === "from_raw") {
+        if (inManuallyDrop(n)) {
+          const r = argRef(a0);
+          if (r.ident) own.borrows.push({ ident: r.ident, mut: true, range });
+          return;
+        }
         own.releases.push({
           how: head === "CString" ? "cstring" : (head.toLowerCase() as OwnHow),
           arg: argRef(a0), inner: turbofish ? lastSeg(turbofish) : bindInner ?? (head === "CString" ? "CString" : undefined),

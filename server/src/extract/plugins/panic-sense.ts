@@ -390,6 +390,24 @@ const FROM_C_PTR = new Set(["from_ptr", "from_raw_parts", "as_ref", "as_mut"]);
  * the call path (the exported function's own parameters always do), else info. */
 export interface SiteLevel { level: "warning" | "info"; taint?: number }
 const WIDE = new Set(["u64", "i64", "u128", "i128"]);
+/** Integer types that hold every slice length (at most isize::MAX). */
+const WIDE_TARGETS = new Set(["isize", "usize", "u64", "i64", "u128", "i128"]);
+const PRIM_SIZE: Record<string, number> = { u8: 1, i8: 1, bool: 1, u16: 2, i16: 2, u32: 4, i32: 4, f32: 4, char: 4, u64: 8, i64: 8, f64: 8, u128: 16, i128: 16 };
+
+/** The type a `….try_into().unwrap()` converts to, where its place fixes it: the argument of a
+ * raw pointer's `offset`/`wrapping_offset` (isize) or `add`/`sub` (usize) (core::ptr), or a
+ * `let x: T` of such a type. */
+function wideTarget(site: Node): boolean {
+  const p = site.parent;
+  if (p?.type === "arguments") {
+    const call = p.parent;
+    const f = call?.type === "call_expression" ? call.childForFieldName("function") : undefined;
+    const m = f?.type === "field_expression" ? f.childForFieldName("field")?.text : undefined;
+    return !!m && ["offset", "wrapping_offset", "byte_offset", "add", "sub"].includes(m) && p.namedChildren.filter((c) => !c.type.endsWith("comment")).length === 1;
+  }
+  if (p?.type === "let_declaration" && p.childForFieldName("value")?.id === site.id) return WIDE_TARGETS.has(p.childForFieldName("type")?.text ?? "");
+  return false;
+}
 const NARROW = new Set(["u8", "i8", "u16", "i16", "u32", "i32", "c_char", "c_schar", "c_uchar", "c_short", "c_ushort", "c_int", "c_uint", "bool"]);
 
 function isConstName(t: string): boolean {
@@ -448,6 +466,10 @@ export class PanicSense {
   readonly fixed = new Scoped<boolean>();
   /** Locals holding the Result of catch_unwind. */
   readonly caughtResult = new Scoped<boolean>();
+  /** Locals defined once as `x + K` (K a constant): name → { x, K }. */
+  readonly sums = new Scoped<{ x: string; k: number }>();
+  /** The tail of `let (head, tail) = s.split_at(K)`: tail → { of: s, k: K } (tail.len() + K == s.len()). */
+  readonly tails = new Scoped<{ of: string; k: number }>();
   readonly closures: { start: number; end: number; call: import("../../model/types.js").Range; arg: number }[] = [];
   implType?: string;
   traitName?: string;
@@ -505,6 +527,23 @@ export class PanicSense {
       const a0 = val.childForFieldName("arguments")?.namedChildren.find((c) => !c.type.endsWith("comment"));
       const first = pat.namedChild(0);
       if (f?.type === "field_expression" && f.childForFieldName("field")?.text === "split_at" && a0 && this.isConstExpr(a0) && first?.type === "identifier") this.fixed.set(first.text, at, true);
+      const second = pat.namedChild(1);
+      const k = a0 ? this.constValue(a0) : undefined;
+      if (f?.type === "field_expression" && f.childForFieldName("field")?.text === "split_at" && k !== undefined && second?.type === "identifier") {
+        this.tails.set(second.text, at, { of: norm(f.childForFieldName("value")), k });
+      }
+    }
+    if (name) {
+      // let full = n + 8
+      const u = uncast(val);
+      let sum: { x: string; k: number } | undefined;
+      if (u?.type === "binary_expression" && opOf(u) === "+") {
+        const l = u.childForFieldName("left"), r = u.childForFieldName("right");
+        const kr = this.constValue(r), kl = this.constValue(l);
+        if (kr !== undefined && kl === undefined) sum = { x: norm(uncast(l)), k: kr };
+        else if (kl !== undefined && kr === undefined) sum = { x: norm(uncast(r)), k: kl };
+      }
+      this.sums.set(name, at, sum);
     }
     const t = val && !this.isTransform(val) ? this.taintOf(val) : 0;
     for (const nm of names) this.taint.set(nm, at, t);
@@ -579,6 +618,49 @@ export class PanicSense {
   }
 
   // ---- value questions
+
+  /** An integer constant: a literal, a const of the file, `size_of::<prim>()`. */
+  constValue(n: Node | null | undefined): number | undefined {
+    const u = uncast(n);
+    if (!u) return undefined;
+    const lit = intLit(u);
+    if (lit !== undefined) return lit;
+    if (u.type === "identifier" && /^[A-Z][A-Z0-9_]*$/.test(u.text)) return this.consts(u.text);
+    if (u.type === "call_expression") {
+      // (std::)mem::size_of::<u64>(): the primitive's size (the Rust Reference, "Primitive data layout")
+      const f = u.childForFieldName("function");
+      if (f?.type === "generic_function" && /(^|::)size_of$/.test(norm(f.childForFieldName("function")))) {
+        const t = f.childForFieldName("type_arguments")?.namedChild(0)?.text ?? "";
+        return PRIM_SIZE[t];
+      }
+    }
+    return undefined;
+  }
+
+  /** Whether `v` is at most the length of some slice: a guard `v <= s.len()` / `v < s.len()`,
+   * or `v` defined as `x + K` where x is at most the tail of `s.split_at(K')` with K <= K'
+   * (so v <= s.len()). A slice never holds more than isize::MAX bytes (std::slice::from_raw_parts,
+   * "Safety"), so such a value fits isize, usize and every wider integer type. */
+  boundedByLen(v: Node, facts: Fact[]): boolean {
+    const u = uncast(v);
+    if (!u) return false;
+    const a = norm(u);
+    const lenBound = (x: string) => facts.filter((f): f is Fact & { k: "lt" } => f.k === "lt" && f.a === x && /\.len\(\)$/.test(f.b)).map((f) => f.b.slice(0, -6));
+    if (lenBound(a).length) return true;
+    const sum = u.type === "identifier" ? this.sums.get(u.text, u.startIndex) : undefined;
+    return !!sum && this.withinTail(sum.x, sum.k, facts, u.startIndex);
+  }
+
+  /** `x + k` stays within a slice: x is at most the tail of `s.split_at(K)` and k <= K. */
+  withinTail(x: string, k: number, facts: Fact[], at: number): boolean {
+    for (const f of facts) {
+      if (f.k !== "lt" || f.a !== x || !/\.len\(\)$/.test(f.b)) continue;
+      const s = f.b.slice(0, -6);
+      const tail = /^[A-Za-z_][A-Za-z0-9_]*$/.test(s) ? this.tails.get(s, at) : undefined;
+      if (tail && k <= tail.k) return true;
+    }
+    return false;
+  }
 
   isConstExpr(n: Node | null | undefined): boolean {
     if (!n) return false;
@@ -700,6 +782,9 @@ export class PanicSense {
         // Box::into_raw / Box::leak never return null (std docs)
         if (a?.type === "call_expression" && /(^|::)Box::(into_raw|leak)$/.test(norm(a.childForFieldName("function")))) return undefined;
       }
+      // a length a slice bounds converted to a type that holds every slice length
+      if (fname === "try_into" && recv2 && wideTarget(site) && this.boundedByLen(recv2, facts)) return undefined;
+      if (fname === "try_from" && f?.type === "scoped_identifier" && WIDE_TARGETS.has(norm(f.childForFieldName("path"))) && args.length === 1 && this.boundedByLen(args[0]!, facts)) return undefined;
       // a slice of constant length converted to an array of that length
       if ((fname === "try_into" && recv2 && this.isFixedSlice(recv2)) || (fname === "try_from" && args.length === 1 && this.isFixedSlice(args[0]))) return undefined;
       // Mutex/RwLock poisoning: only after a panic elsewhere while the lock was held
@@ -754,6 +839,9 @@ export class PanicSense {
     if (op === "+") {
       const one = (x: Node, y: Node) => intLit(y) === 1 && (this.vf.below(facts, norm(x)) !== undefined || this.vf.modBounded.has(norm(x)));
       if (one(l, r) || one(r, l)) return undefined;
+      // a length within the tail of `s.split_at(K)` plus at most K is within s.len() <= isize::MAX
+      const kr = this.constValue(r);
+      if (kr !== undefined && this.withinTail(norm(l), kr, facts, n.startIndex)) return undefined;
     }
     if (op === "+" || op === "*") {
       // two values widened from 32 bits or less into a 64-bit type cannot overflow it by one + or *
@@ -860,11 +948,22 @@ export class PanicSense {
   /** assert!(cond): the lower bounds on parameters the condition needs (`rate > 0` → rate >= 1),
    * when that is all it says; a caller whose guards give those bounds cannot make it fail. The
    * condition's tokens are parsed as a Rust expression by the grammar. */
-  assertNeeds(n: Node, params: string[]): { param: number; ge: number }[] | undefined {
+  assertNeeds(n: Node, params: string[], mac = "assert"): { param: number; ge: number }[] | undefined {
     const tt = n.namedChildren.find((c) => c.type === "token_tree");
     if (!tt) return undefined;
     const toks = tt.children.slice(1, -1);
     const comma = toks.findIndex((t) => t.text === ",");
+    if (mac === "assert_ne") {
+      // assert_ne!(n, 0) / assert_ne!(0, n): n >= 1 for the unsigned counts it guards
+      const parts: string[][] = [[]];
+      for (const t of toks) {
+        if (t.text === ",") parts.push([]);
+        else parts[parts.length - 1]!.push(t.text);
+      }
+      const [a, b] = [parts[0]?.join("") ?? "", parts[1]?.join("") ?? ""];
+      const x = b === "0" ? a : a === "0" ? b : undefined;
+      return x !== undefined && params.includes(x) ? [{ param: params.indexOf(x), ge: 1 }] : undefined;
+    }
     const cond = (comma < 0 ? toks : toks.slice(0, comma)).map((t) => t.text).join(" ");
     if (!cond || cond.length > 200) return undefined;
     let tree: ReturnType<typeof parseText> | undefined;
@@ -903,14 +1002,36 @@ export class PanicSense {
     const facts = this.vf.at(call);
     let any = false;
     const out = args.map((a) => {
-      const t = norm(uncast(a));
-      const lit = intLit(a);
-      let best: number | null = lit !== undefined ? lit : null;
-      for (const f of facts) if (f.k === "ge" && f.a === t && (best === null || f.v > best)) best = f.v;
+      const best = this.lowerOf(a, facts, 0);
       if (best !== null) any = true;
       return best;
     });
     return any ? out : undefined;
+  }
+
+  /** The least value an integer expression can take by what the code shows: a literal, a guard's
+   * bound, 0 for an unsigned value (a length, `strlen`, a local of an unsigned type), and the sum
+   * of those for `a + b` (an unsigned `+` that does not overflow never makes a value smaller). */
+  lowerOf(a: Node | null | undefined, facts: Fact[], depth: number): number | null {
+    const u = uncast(a);
+    if (!u || depth > 6) return null;
+    const lit = intLit(u);
+    let best: number | null = lit !== undefined ? lit : null;
+    const t = norm(u);
+    for (const f of facts) if (f.k === "ge" && f.a === t && (best === null || f.v > best)) best = f.v;
+    if (best !== null) return best;
+    if (u.type === "binary_expression" && opOf(u) === "+") {
+      const l = this.lowerOf(u.childForFieldName("left"), facts, depth + 1);
+      const r = this.lowerOf(u.childForFieldName("right"), facts, depth + 1);
+      return l !== null && r !== null ? l + r : null;
+    }
+    if (u.type === "call_expression") {
+      // `x.len()`, `libc::strlen(s)`: usize / size_t, never negative
+      const f = norm(u.childForFieldName("function"));
+      if (/(^|::|\.)(len|strlen|wcslen|count_ones|leading_zeros|trailing_zeros)$/.test(f)) return 0;
+    }
+    if (u.type === "identifier" && /^(u8|u16|u32|u64|u128|usize|c_uint|c_uchar|c_ushort|c_ulong|size_t)$/.test(this.primTypes.get(u.text, u.startIndex) ?? "")) return 0;
+    return null;
   }
 
   /** assert!/assert_eq!/assert_ne!: undefined when its condition reads constants only (or a

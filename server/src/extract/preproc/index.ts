@@ -40,6 +40,8 @@ export interface PreprocEnv {
   readInclude?: (from: string, path: string, system: boolean) => IncludeSource | undefined;
   /** The C standard's reading of conditions (unknown names are 0), as a compiler would. */
   strict?: boolean;
+  /** Read a header as a C++ translation unit includes it (`__cplusplus` defined). */
+  asCxx?: boolean;
 }
 
 export interface PreprocResult {
@@ -58,6 +60,9 @@ export interface PreprocResult {
   /** Unexpanded uses of such macros: the identifiers each candidate definition would make. */
   undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[];
   expansions: number;
+  /** Lines of the file inside undecided conditional branches, with each branch's condition as
+   * a C expression (`defined(__LP64__)`, `!(defined(__LP64__))`): 0-based, inclusive. */
+  regions: { line: number; endLine: number; cond: string }[];
 }
 
 type LangKind = "c" | "cpp" | "header";
@@ -196,6 +201,24 @@ function lineEnd(text: string, at: number): number {
   return n;
 }
 
+/**
+ * `#ifdef __cplusplus` (or `#if defined(__cplusplus)`, `#if __cplusplus`) whose whole body, up
+ * to an `#endif`, is `extern "C" {` or `}`: one half of the extern "C" guard of a C header.
+ */
+/** A directive's condition as text (tokens joined by spaces; re-tokenizes to the same tokens). */
+function spellCond(args: Tok[]): string {
+  return args.map((t) => t.t).join(" ") || "0";
+}
+
+function isCxxGuard(name: string, args: Tok[], body: Tok[], next: Directive | undefined): boolean {
+  if (next?.toks[0]?.t !== "endif") return false;
+  const cond = args.map((t) => t.t).join(" ");
+  const aboutCxx = name === "ifdef" ? cond === "__cplusplus" : name === "if" && /^(?:defined \( __cplusplus \)|defined __cplusplus|__cplusplus)$/.test(cond);
+  if (!aboutCxx) return false;
+  const b = body.map((t) => t.t).join(" ");
+  return b === 'extern "C" {' || b === "}";
+}
+
 interface Frame {
   /** The enclosing region is live. */
   outer: boolean;
@@ -209,6 +232,10 @@ interface Frame {
   lines: [number, number][];
   /** Where the current branch's body starts (end of its directive line). */
   bodyStart: number;
+  /** Conditions of the group's branches so far, as C expressions (for undecided regions). */
+  conds?: string[];
+  /** The current branch's own condition when it is undecided. */
+  cur?: string;
 }
 
 interface Edit {
@@ -231,6 +258,8 @@ class Run {
   /** Uses of a macro ferrule could not decide, with the names each candidate definition makes. */
   readonly undecided: { macro: string; names: string[]; s: number; e: number; keepsName: boolean }[] = [];
   expansions = 0;
+  readonly regions: { line: number; endLine: number; cond: string }[] = [];
+  private startsOf: { text: string; arr: number[] } | undefined;
   private depth = 0;
 
   constructor(readonly env: PreprocEnv, readonly kind: LangKind) {
@@ -270,7 +299,7 @@ class Run {
       if (d && d.at === i) {
         di++;
         i = d.at + 1 + d.toks.length;
-        this.directive(file, text, d, dirs[di], stack, emit, cond, blank, closeBranch);
+        this.directive(file, text, d, dirs[di], stack, emit, cond, blank, closeBranch, toks);
         continue;
       }
       if (!emit || !this.live(stack)) {
@@ -289,9 +318,29 @@ class Run {
     }
   }
 
+  /** Records the lines of an undecided branch (the main file only), ending where `end` starts. */
+  private region(_file: string, text: string, f: Frame, end: number, emit: boolean): void {
+    if (!emit || !f.outer || f.mode !== "maybe" || !f.cur || this.regions.length > 10_000) return;
+    if (this.startsOf?.text !== text) {
+      const arr = [0];
+      for (let k = text.indexOf("\n"); k >= 0; k = text.indexOf("\n", k + 1)) arr.push(k + 1);
+      this.startsOf = { text, arr };
+    }
+    const arr = this.startsOf.arr;
+    const lineAt = (o: number) => {
+      let lo = 0, hi = arr.length - 1;
+      while (lo < hi) { const mid = (lo + hi + 1) >> 1; if (arr[mid]! <= o) lo = mid; else hi = mid - 1; }
+      return lo;
+    };
+    const a = lineAt(f.bodyStart) + 1;
+    const b = lineAt(end) - 1;
+    if (b >= a) this.regions.push({ line: a, endLine: b, cond: f.cur });
+  }
+
   private directive(
     file: string, text: string, d: Directive, nextDir: Directive | undefined, stack: Frame[], emit: boolean,
     cond: (ts: Tok[]) => boolean | undefined, blank: (s: number, e: number) => void, closeBranch: (f: Frame, next: number) => void,
+    toks: Tok[],
   ): void {
     const name = d.toks[0]?.t ?? "";
     const args = d.toks.slice(1);
@@ -314,10 +363,17 @@ class Run {
               if (name === "ifndef" && v === undefined && !this.table.targetDependent.has(id) && nextDir?.toks[0]?.t === "define" && nextDir.toks[1]?.t === id) v = true;
             }
           }
+          // the extern "C" guard idiom (common practice): `#ifdef __cplusplus` / `extern "C" {` /
+          // `#endif` and its closing `}` twin. A header is read for C and C++ includers alike;
+          // the guard's body only matters to C++, so it is read as a C++ compiler sees it.
+          if (v === undefined && this.kind === "header" && isCxxGuard(name, args, toks.slice(d.at + 1 + d.toks.length, nextDir?.at ?? d.at), nextDir)) v = true;
           f.mode = v === undefined ? "maybe" : v ? "on" : "off";
           if (v === undefined) f.kept = true;
           if (v === true) f.done = true;
         }
+        const own = name === "if" ? spellCond(args) : `${name === "ifndef" ? "!" : ""}defined(${args[0]?.t ?? "_"})`;
+        f.conds = [own];
+        if (f.mode === "maybe") f.cur = own;
         stack.push(f);
         return;
       }
@@ -328,6 +384,7 @@ class Run {
         const f = stack[stack.length - 1];
         if (!f) return;
         closeBranch(f, d.s);
+        this.region(file, text, f, d.s, emit);
         f.lines.push([d.s, d.e]);
         f.bodyStart = d.e;
         if (!f.outer) return;
@@ -345,12 +402,19 @@ class Run {
         f.mode = v === undefined ? "maybe" : v ? "on" : "off";
         if (v === undefined) f.kept = true;
         if (v === true) f.done = true;
+        {
+          const own = name === "else" ? "1" : name === "elif" ? spellCond(args) : `${name === "elifndef" ? "!" : ""}defined(${args[0]?.t ?? "_"})`;
+          const prior = (f.conds ?? []).map((c) => `!(${c})`);
+          f.cur = f.mode === "maybe" ? [...prior, `(${own})`].join(" && ") : undefined;
+          (f.conds ??= []).push(own);
+        }
         return;
       }
       case "endif": {
         const f = stack.pop();
         if (!f) return;
         closeBranch(f, d.s);
+        this.region(file, text, f, d.s, emit);
         f.lines.push([d.s, d.e]);
         if (f.outer && !f.kept && emit) for (const [s, e] of f.lines) blank(s, e);
         return;
@@ -440,7 +504,10 @@ class Run {
     // (one candidate under an undecided condition; several are taken as the branches of one
     // #if/#else, which define it either way)
     const entry = this.table.map.get(first.t);
-    if (entry?.maybeUndef && entry.defs.length === 1) keepsName = true;
+    // (an object-like renaming macro — zlib's `#define gzopen gzopen64` under one option, `#define
+    // gzopen z_gzopen` under another — may be undefined under a third: the name itself stays one
+    // of the readings; a function-like macro's name is no declarator name when it is undefined)
+    if (entry?.maybeUndef && (entry.defs.length === 1 || entry.defs.every((d) => !d.params))) keepsName = true;
     let tables = variants(first.t);
     if (this.table.map.get(first.t)?.defs.length === 1 && !this.table.map.get(first.t)!.maybeUndef) {
       let inner: string | undefined;
@@ -543,17 +610,17 @@ interface Seg {
 
 /** Preprocesses one file (never throws on bad input; an internal limit leaves the text as is). */
 export function preprocess(file: string, text: string, env: PreprocEnv): PreprocResult {
-  const run = new Run(env, langKindOf(file));
+  const run = new Run(env, env.asCxx ? "cpp" : langKindOf(file));
   if (!hasDirective(text) && ![...run.table.map.keys()].some((k) => text.includes(k))) {
     // no directive (so no include and no #define) and no predefined or configured macro named:
     // nothing to expand, and no token stream to build
-    return { text, changed: false, mapCol: (_l, c) => c, reads: [], envKey: quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, []])), ambiguous: [], undecided: [], expansions: 0 };
+    return { text, changed: false, mapCol: (_l, c) => c, reads: [], envKey: quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, !!env.asCxx, []])), ambiguous: [], undecided: [], expansions: 0, regions: [] };
   }
   run.included.add(file);
   run.file(file, text, scanCached(text), true);
-  const envKey = quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, run.readKeys]));
+  const envKey = quickHash(JSON.stringify([env.targets, env.defines ?? {}, env.strip ?? [], !!env.strict, !!env.asCxx, run.readKeys]));
   const edits = run.edits.sort((a, b) => a.s - b.s);
-  const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], undecided: run.undecided, expansions: run.expansions };
+  const base = { reads: run.reads, envKey, ambiguous: [...run.ambiguous], undecided: run.undecided, expansions: run.expansions, regions: run.regions };
   if (edits.length === 0) return { text, changed: false, mapCol: (_l, c) => c, ...base };
   const parts: string[] = [];
   const segs = new Map<number, Seg[]>();
