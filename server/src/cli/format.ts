@@ -75,6 +75,7 @@ export function formatText(findings: JsonFinding[], color: boolean): string {
 
 const SARIF_LEVEL: Record<string, string> = { error: "error", warning: "warning", info: "note", hint: "note" };
 
+<<<<<<< Updated upstream
 /**
  * A fingerprint that survives moved lines: the rule, the file, and the message with its line and
  * column numbers taken out (`sonar_kernels.h:19` → `sonar_kernels.h:#`), plus the number of earlier
@@ -92,6 +93,41 @@ export function fingerprints(findings: JsonFinding[]): string[] {
 }
 
 export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version: string, rootUri: string): string {
+=======
+/** What a SARIF log says about the run beside the findings. */
+export interface SarifRun {
+  version: string;
+  /** file:// URI of the folder the relative paths start from (%SRCROOT%). */
+  rootUri: string;
+  /** where the rule pages live (package.json `homepage`). */
+  homepage: string;
+  exitCode: number;
+  /** the text of a finding's line, for fingerprints (undefined: file not readable). */
+  lineText: (file: string, line: number) => string | undefined;
+  /** findings an inline `ferrule: accept` comment silenced, with its reason. */
+  suppressed?: { finding: JsonFinding; reason: string }[];
+}
+
+/** A fingerprint that survives inserted lines: rule, file, the trimmed text of the finding's line
+ * and the message with line numbers taken out — never the line number itself. */
+export function fingerprint(f: JsonFinding, lineText: string | undefined): string {
+  const msg = f.message.replace(/:\d+(:\d+)?\b/g, "").replace(/\blines? \d+(\s*[-–]\s*\d+)?/g, "line");
+  return createHash("sha256").update([f.rule, f.file, (lineText ?? "").trim(), msg].join("\0")).digest("hex").slice(0, 32);
+}
+
+export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], runInfo: SarifRun): string {
+  const { version, rootUri } = runInfo;
+  const home = runInfo.homepage.replace(/\/$/, "");
+  const seen = new Map<string, number>();
+  const fp = (f: JsonFinding) => {
+    const h = fingerprint(f, runInfo.lineText(f.file, f.line));
+    const n = seen.get(h) ?? 0;
+    seen.set(h, n + 1);
+    // two findings alike in every way but place: numbered in file order (stable while their order is)
+    return n ? `${h}:${n}` : h;
+  };
+  const notices = findings.filter((f) => f.rule === "internal-error" || (f.rule === "file-skipped" && f.message.startsWith("skipped:")));
+>>>>>>> Stashed changes
   const ruleIndex = new Map(rules.map((r, i) => [r.id, i]));
   const prints = fingerprints(findings);
   const loc = (file: string, line: number, column: number, endLine?: number, endColumn?: number) => ({
@@ -109,27 +145,49 @@ export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version:
           driver: {
             name: "ferrule",
             version,
-            informationUri: "https://example.invalid/ferrule",
+            informationUri: home,
             rules: rules.map((r) => ({
               id: r.id,
               name: r.id.replace(/(^|-)(\w)/g, (_m, _d, ch: string) => ch.toUpperCase()),
               shortDescription: { text: r.summary },
               fullDescription: { text: r.why },
-              help: { text: `${r.summary} ${r.why}` },
+              help: { text: `${r.summary} ${r.why}`, markdown: `**${r.summary}**\n\n${r.why}\n\nSee [the rule's page](${home}/blob/main/docs/rules/${r.id}.md).` },
+              helpUri: `${home}/blob/main/docs/rules/${r.id}.md`,
               defaultConfiguration: { level: SARIF_LEVEL[r.severity] },
             })),
           },
         },
         invocations: [{ executionSuccessful: !findings.some((f) => f.rule === "internal-error") }],
         originalUriBaseIds: { "%SRCROOT%": { uri: rootUri.endsWith("/") ? rootUri : rootUri + "/" } },
+<<<<<<< Updated upstream
         results: findings.map((f, k) => {
+=======
+        invocations: [
+          {
+            executionSuccessful: runInfo.exitCode !== 2 && !notices.some((f) => f.rule === "internal-error"),
+            exitCode: runInfo.exitCode,
+            toolExecutionNotifications: notices.map((f) => ({
+              level: f.rule === "internal-error" ? "error" : "warning",
+              message: { text: f.message },
+              descriptor: { id: f.rule },
+              locations: [loc(f.file, f.line, f.column)],
+            })),
+          },
+        ],
+        results: [...findings.map((f) => ({ f, reason: undefined as string | undefined })), ...(runInfo.suppressed ?? []).map((s) => ({ f: s.finding, reason: s.reason as string | undefined }))].map(({ f, reason }) => {
+>>>>>>> Stashed changes
           const res: Record<string, unknown> = {
             ruleId: f.rule,
             level: SARIF_LEVEL[f.severity],
             message: { text: f.message },
             locations: [loc(f.file, f.line, f.column, f.endLine, f.endColumn)],
+<<<<<<< Updated upstream
             partialFingerprints: { "ferruleFinding/v1": prints[k] },
+=======
+            partialFingerprints: { "ferruleFinding/v1": fp(f) },
+>>>>>>> Stashed changes
           };
+          if (reason !== undefined) res.suppressions = [{ kind: "inSource", justification: reason }];
           const idx = ruleIndex.get(f.rule);
           if (idx !== undefined) res.ruleIndex = idx;
           if (f.related.length) {

@@ -359,10 +359,27 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
     io.stderr(`ferrule: ${skipped.length} file(s) not read (their findings are missing): ${skipped.slice(0, 10).map((f) => f.file).join(", ")}${skipped.length > 10 ? ", …" : ""}\n`);
   }
   phase("findings");
+  const exitCode = json.some((f) => RANK[f.severity]! >= LEVEL_RANK[o.failOn]) || (o.failOnSkip && skipped.length > 0) ? 1 : 0;
   if (o.format === "json") io.stdout(formatJson(json));
-  else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
-  else io.stdout(formatText(json, useColor(io.isTTY)) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
-  return json.some((f) => RANK[f.severity]! >= LEVEL_RANK[o.failOn]) || (o.failOnSkip && skipped.length > 0) ? 1 : 0;
+  else if (o.format === "sarif") {
+    const lines = new Map<string, string[] | undefined>();
+    const lineText = (file: string, line: number) => {
+      if (!lines.has(file)) {
+        let text: string[] | undefined;
+        try {
+          // a file this run has read already (its findings' file), again as a small regular file
+          text = readSmallRegularFile(path.resolve(io.cwd, file), { limit: 64 * 2 ** 20 }).split(/\r?\n/);
+        } catch {
+          text = undefined;
+        }
+        lines.set(file, text);
+      }
+      return lines.get(file)?.[line - 1];
+    };
+    const suppressed = res.suppressed.map((s) => ({ finding: toJsonFinding(s.finding, io.cwd), reason: s.reason }));
+    io.stdout(formatSarif(json, allRules(), { version: VERSION, rootUri: pathToFileURL(io.cwd).href, homepage: pkg.homepage, exitCode, lineText, suppressed }));
+  } else io.stdout(formatText(json, useColor(io.isTTY)) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
+  return exitCode;
 }
 
 export async function main(): Promise<void> {
