@@ -240,3 +240,41 @@ describe("SARIF fingerprints", () => {
     expect(new Set(prints(before)).size).toBe(before.length);
   });
 });
+
+describe("SARIF for code scanning", () => {
+  test("rule help, invocation, %SRCROOT%-relative URIs, and accepted findings reported as suppressed with their reason", () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-sup-"));
+    fs.cpSync(path.join(ROOT, "test-fixtures/sonar-demo"), dir, { recursive: true });
+    const sarif = () => JSON.parse(ferrule(["check", "--format", "sarif", "."], dir).out).runs[0];
+    const before = sarif();
+    const target = before.results.find((x: { ruleId: string }) => x.ruleId === "export-name-mangled");
+    expect(target).toBeDefined();
+    const uri = target.locations[0].physicalLocation.artifactLocation.uri as string;
+    expect(uri).not.toMatch(/^\/|^file:/);
+    expect(target.locations[0].physicalLocation.artifactLocation.uriBaseId).toBe("%SRCROOT%");
+    expect(before.originalUriBaseIds["%SRCROOT%"].uri).toMatch(/^file:.*\/$/);
+    expect(before.invocations[0]).toMatchObject({ executionSuccessful: true, exitCode: 1 });
+    const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, "package.json"), "utf8"));
+    expect(before.tool.driver.informationUri).toBe(pkg.homepage);
+    for (const r of before.tool.driver.rules) {
+      expect(r.helpUri).toBe(`${pkg.homepage}/blob/main/docs/rules/${r.id}.md`);
+      expect(r.shortDescription.text.length).toBeGreaterThan(0);
+      expect(r.fullDescription.text.length).toBeGreaterThan(0);
+    }
+    // accept it in the source, on the line above
+    const file = path.join(dir, uri);
+    const lines = fs.readFileSync(file, "utf8").split("\n");
+    const at = target.locations[0].physicalLocation.region.startLine - 1;
+    lines.splice(at, 0, "// ferrule: accept export-name-mangled because the gain setter is bound by a loader table");
+    fs.writeFileSync(file, lines.join("\n"));
+    const after = sarif();
+    const sup = after.results.filter((x: { suppressions?: unknown[] }) => x.suppressions);
+    expect(sup).toHaveLength(1);
+    expect(sup[0].ruleId).toBe("export-name-mangled");
+    expect(sup[0].suppressions).toEqual([{ kind: "inSource", justification: "the gain setter is bound by a loader table" }]);
+    expect(sup[0].partialFingerprints["ferruleFinding/v1"]).toBe(target.partialFingerprints["ferruleFinding/v1"]);
+    // JSON and text leave it out
+    const json = JSON.parse(ferrule(["check", "--format", "json", "."], dir).out).findings;
+    expect(json.filter((f: { rule: string }) => f.rule === "export-name-mangled")).toHaveLength(before.results.filter((x: { ruleId: string }) => x.ruleId === "export-name-mangled").length - 1);
+  });
+});

@@ -75,25 +75,6 @@ export function formatText(findings: JsonFinding[], color: boolean): string {
 
 const SARIF_LEVEL: Record<string, string> = { error: "error", warning: "warning", info: "note", hint: "note" };
 
-<<<<<<< Updated upstream
-/**
- * A fingerprint that survives moved lines: the rule, the file, and the message with its line and
- * column numbers taken out (`sonar_kernels.h:19` → `sonar_kernels.h:#`), plus the number of earlier
- * findings with the same three (two identical findings in one file stay two results).
- */
-export function fingerprints(findings: JsonFinding[]): string[] {
-  const seen = new Map<string, number>();
-  return findings.map((f) => {
-    const msg = f.message.replace(/:\d+(?::\d+)?\b/g, ":#").replace(/\bline \d+\b/g, "line #");
-    const base = `${f.rule}\u0000${f.file.split(path.sep).join("/")}\u0000${msg}`;
-    const n = seen.get(base) ?? 0;
-    seen.set(base, n + 1);
-    return createHash("sha256").update(`${base}\u0000${n}`).digest("hex").slice(0, 32);
-  });
-}
-
-export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version: string, rootUri: string): string {
-=======
 /** What a SARIF log says about the run beside the findings. */
 export interface SarifRun {
   version: string;
@@ -127,9 +108,7 @@ export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], runInfo:
     return n ? `${h}:${n}` : h;
   };
   const notices = findings.filter((f) => f.rule === "internal-error" || (f.rule === "file-skipped" && f.message.startsWith("skipped:")));
->>>>>>> Stashed changes
   const ruleIndex = new Map(rules.map((r, i) => [r.id, i]));
-  const prints = fingerprints(findings);
   const loc = (file: string, line: number, column: number, endLine?: number, endColumn?: number) => ({
     physicalLocation: {
       artifactLocation: { uri: file.split(path.sep).join("/"), uriBaseId: "%SRCROOT%" },
@@ -157,11 +136,7 @@ export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], runInfo:
             })),
           },
         },
-        invocations: [{ executionSuccessful: !findings.some((f) => f.rule === "internal-error") }],
         originalUriBaseIds: { "%SRCROOT%": { uri: rootUri.endsWith("/") ? rootUri : rootUri + "/" } },
-<<<<<<< Updated upstream
-        results: findings.map((f, k) => {
-=======
         invocations: [
           {
             executionSuccessful: runInfo.exitCode !== 2 && !notices.some((f) => f.rule === "internal-error"),
@@ -175,17 +150,12 @@ export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], runInfo:
           },
         ],
         results: [...findings.map((f) => ({ f, reason: undefined as string | undefined })), ...(runInfo.suppressed ?? []).map((s) => ({ f: s.finding, reason: s.reason as string | undefined }))].map(({ f, reason }) => {
->>>>>>> Stashed changes
           const res: Record<string, unknown> = {
             ruleId: f.rule,
             level: SARIF_LEVEL[f.severity],
             message: { text: f.message },
             locations: [loc(f.file, f.line, f.column, f.endLine, f.endColumn)],
-<<<<<<< Updated upstream
-            partialFingerprints: { "ferruleFinding/v1": prints[k] },
-=======
             partialFingerprints: { "ferruleFinding/v1": fp(f) },
->>>>>>> Stashed changes
           };
           if (reason !== undefined) res.suppressions = [{ kind: "inSource", justification: reason }];
           const idx = ruleIndex.get(f.rule);
