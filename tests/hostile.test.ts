@@ -288,3 +288,15 @@ describe("budgets and skipped files", () => {
     expect(b.err).toMatch(/key `max_total_seconds`: expected a number of seconds above 0/);
   });
 });
+
+describe("paths a repository's config names", () => {
+  test("include_paths outside the project: exit 2 naming the file and key; allowed with --config", () => {
+    const outside = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-outside-"));
+    const dir = workspace({ ".ferrule.toml": `include_paths = [${JSON.stringify(outside)}, "../"]\n` });
+    const r = ferrule(["check", "."], dir);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/\.ferrule\.toml: key `include_paths`: .* is outside the project folder/);
+    const named = ferrule(["check", "--config", path.join(dir, ".ferrule.toml"), "."], dir);
+    expect(named.code).toBe(1); // the tally slip, checked as usual
+  });
+});

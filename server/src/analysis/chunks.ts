@@ -17,6 +17,7 @@ import { suppressionsOf, type Suppression } from "./suppress.js";
 import { fixesFor, type Fix } from "../fixes/index.js";
 import type { FerruleConfig } from "./config.js";
 import { finishFindings } from "./finish.js";
+import { systemFactsFor } from "./system.js";
 import { unpackFacts, type PackedFile } from "./packed.js";
 
 export interface PlanInput {
@@ -123,7 +124,8 @@ export interface ChunkResult {
  * workspace checks (rules/api.ts WorkspaceCheck) gather into `gathered`. */
 export function checkChunk(chunk: readonly PackedFile[], ctx: ChunkContext, gathered: Map<string, GatheredItem[]>): ChunkResult {
   const facts = chunk.map((b) => unpackFacts(b));
-  const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex: ctx.includeIndex, project: ctx.project });
+  const system = systemFactsFor(facts, ctx.config.targets);
+  const model = new Model(facts, { targets: ctx.config.targets, includePaths: ctx.config.includePaths, families: ctx.config.families, workspaceSides: ctx.sides, includeIndex: ctx.includeIndex, project: ctx.project, system });
   const findings = finishFindings(runRules(model, FAMILIES, gathered), model, ctx.config);
   return { findings, suppressions: suppressionsOf(model), fixes: ctx.withFixes ? findings.map((f) => fixesFor(f, model)) : undefined };
 }

@@ -10,6 +10,7 @@ import { extractFile, initParsers, type ExtractOptions, skippedFacts } from "../
 import { langOf } from "../parse/parser.js";
 import { DEFAULT_CONFIG, Model } from "../model/boundary.js";
 import type { FileFacts } from "../model/types.js";
+import { systemFactsFor } from "./system.js";
 import { FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
 import { DEFAULTS, type FerruleConfig } from "./config.js";
 import { suppressedSink } from "./suppress.js";
@@ -350,7 +351,10 @@ export class Workspace {
   }
 
   model(): Model {
-    this.cachedModel ??= new Model([...this.entries.values()].map((e) => e.facts), this.modelConfig());
+    if (!this.cachedModel) {
+      const facts = [...this.entries.values()].map((e) => e.facts);
+      this.cachedModel = new Model(facts, { ...this.modelConfig(), system: systemFactsFor(facts, this.config.targets) });
+    }
     return this.cachedModel;
   }
 
@@ -390,7 +394,7 @@ export class Workspace {
     // unique in the part may not be unique in the workspace)
     const mc = this.modelConfig();
     const includeIndex = new IncludeIndex((f) => this.entries.has(f), () => this.entries.keys(), mc.includePaths);
-    const model = new Model(facts, { ...mc, workspaceSides: sides, includeIndex });
+    const model = new Model(facts, { ...mc, workspaceSides: sides, includeIndex, system: systemFactsFor(facts, mc.targets) });
     return { findings: this.finish(runRules(model, FAMILIES, gathered), model), model };
   }
 

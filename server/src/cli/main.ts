@@ -218,8 +218,18 @@ export function loadConfig(file: string | undefined, cwd: string, named = false)
     throw new ConfigError(shown, "", `cannot read: ${(e as NodeJS.ErrnoException).code}`);
   }
   const cfg = parseConfigText(text, shown);
-  // include paths are relative to the config file's folder
-  cfg.includePaths = cfg.includePaths.map((p) => path.resolve(path.dirname(file), p));
+  // include paths are relative to the config file's folder; a config the repository holds (found
+  // by walking up, not named with --config) may not point ferrule outside its own folder
+  const home = path.dirname(path.resolve(file));
+  cfg.includePaths = cfg.includePaths.map((p) => path.resolve(home, p));
+  if (!named) {
+    for (const p of cfg.includePaths) {
+      const rel = path.relative(home, p);
+      if (rel.startsWith("..") || path.isAbsolute(rel)) {
+        throw new ConfigError(shown, "include_paths", `\`${p}\` is outside the project folder ${home}; a repository's own config cannot make ferrule read there (name the file with --config, or set the editor's ferrule.includePaths, to allow it)`);
+      }
+    }
+  }
   return cfg;
 }
 

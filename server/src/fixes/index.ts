@@ -59,7 +59,13 @@ function paramSync(f: Finding, model: Model): Fix[] {
       const cText = cDecl(rp.type, cp.name, model);
       out.push({ title: `Change the C parameter to match Rust: \`${cText}\``, edits: [{ range: cp.range, newText: cText }], preferred: true });
     }
-    out.push({ title: `Change the Rust parameter to match C: \`${rustSpell(cp.type, model)}\``, edits: [{ range: rp.typeRange, newText: rustSpell(cp.type, model) }], preferred: rustFirst });
+    // A Rust export's body reads or writes through a pointer parameter in its pointee type: changing
+    // that type alone (to `*const`, or to another pointee) leaves a body that does not compile
+    // (fix harness, tests/fix-harness.test.ts). Not offered until the fix also edits the body.
+    const bodyUsesPointer = rust.role === "export" && rp.type.k === "ptr";
+    if (rustFirst || !bodyUsesPointer) {
+      out.push({ title: `Change the Rust parameter to match C: \`${rustSpell(cp.type, model)}\``, edits: [{ range: rp.typeRange, newText: rustSpell(cp.type, model) }], preferred: rustFirst });
+    }
   } else if (f.data?.ret && c.retRange) {
     out.push({ title: "Replace the C prototype with one generated from the Rust signature", edits: [{ range: c.range, newText: cPrototype(rust, model) }], preferred: true });
   }

@@ -5,6 +5,7 @@ import type { AbiType, Field, FileFacts, FnDecl, IncludeRef, MacroItem, TypeDecl
 import { ALL_TRIPLES, type Triple } from "./targets.js";
 import { IncludeIndex } from "./includes.js";
 import { allOf, canHold, envsFor, ppCondOn, type Cond, type CondEnv } from "./conditions.js";
+import type { Layout } from "./layout.js";
 import { archVariant, type FileUnit, type ProjectInfo } from "./project.js";
 
 export type Side = "rust" | "c";
@@ -23,7 +24,20 @@ export interface ModelConfig {
   /** The project as its build sees it (analysis/project.ts): link units, features, file
    * conditions. Without it every file is in one link unit and features are unknown. */
   project?: ProjectInfo;
+  /** Layouts of system structs (kernel UAPI / C library) read from each target's own headers by
+   * the analysis layer (analysis/system.ts): name → target → layout. Facts, not a reader. */
+  system?: SystemFacts;
 }
+
+/** One system struct's layout on one target, with the header it came from. */
+export interface SystemLayout {
+  header: string;
+  file: string;
+  layout: Layout;
+}
+
+/** name → target → layout (a target is absent when its headers are not installed). */
+export type SystemFacts = Map<string, Partial<Record<Triple, SystemLayout>>>;
 
 export const DEFAULT_CONFIG: ModelConfig = { targets: [...ALL_TRIPLES], includePaths: [], families: {} };
 

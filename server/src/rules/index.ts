@@ -1,6 +1,7 @@
 // The rule registry and the runner. A family that throws becomes one internal finding; the
 // other families' results stand.
 
+import { systemMirrorsFamily } from "./system-mirrors.js";
 import type { Model } from "../model/boundary.js";
 import type { Finding, GatheredItem, RuleFamily, RuleMeta } from "./api.js";
 import { symbolsFamily } from "./symbols.js";
@@ -46,7 +47,7 @@ export const SUPPRESSION_WITHOUT_REASON: RuleMeta = {
 };
 
 export const FAMILIES: RuleFamily[] = [
-  symbolsFamily, signaturesFamily, cRepresentationFamily, linkageFamily, layoutFamily, buffersFamily, ownershipFamily,
+  symbolsFamily, signaturesFamily, cRepresentationFamily, linkageFamily, layoutFamily, buffersFamily, ownershipFamily, systemMirrorsFamily,
 ];
 
 /** Lets later rule families register themselves without editing this list by hand. */

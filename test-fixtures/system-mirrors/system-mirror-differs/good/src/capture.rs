@@ -1,0 +1,51 @@
+//! Radio-telescope FPGA capture daemon: maps the sample ring for the correlator board's DMA
+//! engine through VFIO and waits for "block ready" interrupts on an eventfd in an epoll loop.
+#![allow(non_camel_case_types)]
+
+use std::os::raw::c_int;
+
+/// Mirror of the kernel's `struct vfio_iommu_type1_dma_map` (<linux/vfio.h>).
+#[repr(C)]
+pub struct vfio_iommu_type1_dma_map {
+    pub argsz: u32,
+    pub flags: u32,
+    pub vaddr: u64,
+    pub iova: u64,
+    pub size: u64,
+}
+
+/// Mirror of the C library's `struct epoll_event` (<sys/epoll.h>): packed on x86_64 only, as glibc
+/// declares it there.
+#[cfg(target_arch = "x86_64")]
+#[repr(C, packed)]
+pub struct epoll_event {
+    pub events: u32,
+    pub data: u64,
+}
+
+#[cfg(not(target_arch = "x86_64"))]
+#[repr(C)]
+pub struct epoll_event {
+    pub events: u32,
+    pub data: u64,
+}
+
+extern "C" {
+    fn epoll_wait(epfd: c_int, events: *mut epoll_event, maxevents: c_int, timeout: c_int) -> c_int;
+}
+
+pub fn wait_blocks(epfd: c_int, ready: &mut [epoll_event; 8]) -> c_int {
+    unsafe { epoll_wait(epfd, ready.as_mut_ptr(), 8, 250) }
+}
+
+/// Mirror of `struct vfio_device_info` from a newer kernel than the build machine's headers: the
+/// kernel's extensible structs grow at their end, and `argsz` tells it how much the caller knows.
+#[repr(C)]
+pub struct vfio_device_info {
+    pub argsz: u32,
+    pub flags: u32,
+    pub num_regions: u32,
+    pub num_irqs: u32,
+    pub cap_offset: u32,
+    pub pad: u32,
+}
