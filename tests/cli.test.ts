@@ -96,6 +96,57 @@ describe("ferrule check on the demo", () => {
   });
 });
 
+describe("CLI conventions", () => {
+  test("--version prints the version of package.json", () => {
+    const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, "package.json"), "utf8"));
+    const r = ferrule(["--version"]);
+    expect(r.code).toBe(0);
+    expect(r.out.trim()).toBe(`ferrule ${pkg.version}`);
+  });
+
+  test("each command's --help describes each of its flags and exits 0", () => {
+    const flags: Record<string, string[]> = {
+      check: ["--format", "--target", "--config", "--show-fixes", "--baseline", "--update-baseline", "--fail-on", "--fail-on-skip"],
+      layout: ["--format", "--target"],
+      lsp: ["--stdio"],
+    };
+    for (const [cmd, fl] of Object.entries(flags)) {
+      const r = ferrule([cmd, "--help"]);
+      expect(r.code).toBe(0);
+      expect(r.out).toMatch(new RegExp(`^usage: ferrule ${cmd}`));
+      for (const f of fl) expect(r.out).toMatch(new RegExp(`^\\s+${f}\\b.*\\S`, "m"));
+    }
+    // a flag of another command is refused
+    expect(ferrule(["layout", "--baseline", "x", "test-fixtures/sonar-demo"]).code).toBe(2);
+  });
+
+  test("text prints info and hint as gcc-style `note` lines", () => {
+    const json = JSON.parse(ferrule(["check", "--format", "json", "test-fixtures/sonar-demo"]).out).findings as { severity: string; file: string; line: number; column: number }[];
+    const notes = json.filter((f) => f.severity === "info" || f.severity === "hint");
+    expect(notes.length).toBeGreaterThan(0);
+    const text = ferrule(["check", "test-fixtures/sonar-demo"]).out;
+    for (const f of notes) expect(text).toContain(`${f.file}:${f.line}:${f.column}: note: `);
+    expect(text).not.toMatch(/: (info|hint): /);
+  });
+
+  test("--fail-on sets the lowest severity that exits 1", () => {
+    // test-fixtures/clean gives notes only
+    expect(ferrule(["check", "test-fixtures/clean"]).code).toBe(0);
+    expect(ferrule(["check", "--fail-on", "warning", "test-fixtures/clean"]).code).toBe(0);
+    expect(ferrule(["check", "--fail-on", "note", "test-fixtures/clean"]).code).toBe(1);
+    expect(ferrule(["check", "--fail-on", "error", "test-fixtures/sonar-demo"]).code).toBe(1);
+    expect(ferrule(["check", "--fail-on", "fatal", "test-fixtures/clean"]).code).toBe(2);
+  });
+
+  test("NO_COLOR and FORCE_COLOR decide colours", () => {
+    const run = (env: Record<string, string>) =>
+      spawnSync(process.execPath, [BIN, "check", "test-fixtures/sonar-demo"], { cwd: ROOT, encoding: "utf8", timeout: 60_000, env: { ...process.env, NO_COLOR: "", FORCE_COLOR: "", ...env } }).stdout;
+    expect(run({})).not.toContain("\x1b["); // not a terminal
+    expect(run({ FORCE_COLOR: "1" })).toContain("\x1b[31merror");
+    expect(run({ FORCE_COLOR: "1", NO_COLOR: "1" })).not.toContain("\x1b[");
+  });
+});
+
 describe("usage and configuration errors exit 2 with one line", () => {
   for (const [name, args] of [
     ["unknown flag", ["check", "--frobnicate"]],
@@ -187,5 +238,43 @@ describe("SARIF fingerprints", () => {
     // the lines did move: the fingerprints are not line-based
     expect(after.map((x) => x.locations[0]!.physicalLocation.region.startLine)).not.toEqual(before.map((x) => x.locations[0]!.physicalLocation.region.startLine));
     expect(new Set(prints(before)).size).toBe(before.length);
+  });
+});
+
+describe("SARIF for code scanning", () => {
+  test("rule help, invocation, %SRCROOT%-relative URIs, and accepted findings reported as suppressed with their reason", () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "ferrule-sup-"));
+    fs.cpSync(path.join(ROOT, "test-fixtures/sonar-demo"), dir, { recursive: true });
+    const sarif = () => JSON.parse(ferrule(["check", "--format", "sarif", "."], dir).out).runs[0];
+    const before = sarif();
+    const target = before.results.find((x: { ruleId: string }) => x.ruleId === "export-name-mangled");
+    expect(target).toBeDefined();
+    const uri = target.locations[0].physicalLocation.artifactLocation.uri as string;
+    expect(uri).not.toMatch(/^\/|^file:/);
+    expect(target.locations[0].physicalLocation.artifactLocation.uriBaseId).toBe("%SRCROOT%");
+    expect(before.originalUriBaseIds["%SRCROOT%"].uri).toMatch(/^file:.*\/$/);
+    expect(before.invocations[0]).toMatchObject({ executionSuccessful: true, exitCode: 1 });
+    const pkg = JSON.parse(fs.readFileSync(path.join(ROOT, "package.json"), "utf8"));
+    expect(before.tool.driver.informationUri).toBe(pkg.homepage);
+    for (const r of before.tool.driver.rules) {
+      expect(r.helpUri).toBe(`${pkg.homepage}/blob/main/docs/rules/${r.id}.md`);
+      expect(r.shortDescription.text.length).toBeGreaterThan(0);
+      expect(r.fullDescription.text.length).toBeGreaterThan(0);
+    }
+    // accept it in the source, on the line above
+    const file = path.join(dir, uri);
+    const lines = fs.readFileSync(file, "utf8").split("\n");
+    const at = target.locations[0].physicalLocation.region.startLine - 1;
+    lines.splice(at, 0, "// ferrule: accept export-name-mangled because the gain setter is bound by a loader table");
+    fs.writeFileSync(file, lines.join("\n"));
+    const after = sarif();
+    const sup = after.results.filter((x: { suppressions?: unknown[] }) => x.suppressions);
+    expect(sup).toHaveLength(1);
+    expect(sup[0].ruleId).toBe("export-name-mangled");
+    expect(sup[0].suppressions).toEqual([{ kind: "inSource", justification: "the gain setter is bound by a loader table" }]);
+    expect(sup[0].partialFingerprints["ferruleFinding/v1"]).toBe(target.partialFingerprints["ferruleFinding/v1"]);
+    // JSON and text leave it out
+    const json = JSON.parse(ferrule(["check", "--format", "json", "."], dir).out).findings;
+    expect(json.filter((f: { rule: string }) => f.rule === "export-name-mangled")).toHaveLength(before.results.filter((x: { ruleId: string }) => x.ruleId === "export-name-mangled").length - 1);
   });
 });

@@ -47,10 +47,16 @@ export function suppressionsOf(model: Model): Map<string, Suppression[]> {
   return byFile;
 }
 
+/** Where the findings a suppression silenced go while a `check` records them (SARIF reports them
+ * as suppressed, with the comment's reason); unset, they are simply dropped. */
+export const suppressedSink: { record?: (f: Finding, reason: string) => void } = {};
+
 /** The findings no suppression (with a reason) covers. */
 export function unsuppressed(findings: Finding[], byFile: ReadonlyMap<string, Suppression[]>): Finding[] {
   return findings.filter((f) => {
     const sups = byFile.get(f.range.file);
-    return !sups?.some((s) => s.reason && (s.rules.includes(f.rule) || s.rules.includes("all")) && (s.endLine === f.range.line || s.endLine === f.range.line - 1 || s.line === f.range.line));
+    const hit = sups?.find((s) => s.reason && (s.rules.includes(f.rule) || s.rules.includes("all")) && (s.endLine === f.range.line || s.endLine === f.range.line - 1 || s.line === f.range.line));
+    if (hit) suppressedSink.record?.(f, hit.reason);
+    return !hit;
   });
 }

@@ -13,6 +13,7 @@ import type { FileFacts } from "../model/types.js";
 import { systemFactsFor } from "./system.js";
 import { FAMILIES, runRules, type Finding, type GatheredItem } from "../rules/index.js";
 import { DEFAULTS, type FerruleConfig } from "./config.js";
+import { suppressedSink } from "./suppress.js";
 import { concludeFinished, dedupe, finishFindings, sortFindings } from "./finish.js";
 import type { Suppression } from "./suppress.js";
 import { loadFiles, loadPacked, type PreprocData } from "./parallel.js";
@@ -460,7 +461,17 @@ export class Workspace {
    * The findings are those `check()` gives after loading everything; the facts are not kept, so
    * `model()` and `check()` do not see these files.
    */
-  async checkChunked(paths: string[], opts: { script?: string; workers?: number; chunkFiles?: number; withFixes?: boolean; onProgress?: (n: number, total: number) => void; onPhase?: (name: string) => void; root?: string } = {}): Promise<{ findings: Finding[]; fixes: Map<Finding, Fix[]>; files: number; chunks: number; largestChunk: number }> {
+  async checkChunked(paths: string[], opts: { script?: string; workers?: number; chunkFiles?: number; withFixes?: boolean; onProgress?: (n: number, total: number) => void; onPhase?: (name: string) => void; root?: string } = {}): Promise<{ findings: Finding[]; suppressed: { finding: Finding; reason: string }[]; fixes: Map<Finding, Fix[]>; files: number; chunks: number; largestChunk: number }> {
+    const silenced = new Map<string, { finding: Finding; reason: string }>();
+    suppressedSink.record = (f, reason) => silenced.set(`${f.rule}|${f.range.file}|${f.range.line}|${f.range.col}|${f.message}`, { finding: f, reason });
+    try {
+      return await this.checkChunkedInner(paths, opts, () => [...silenced.values()]);
+    } finally {
+      suppressedSink.record = undefined;
+    }
+  }
+
+  private async checkChunkedInner(paths: string[], opts: { script?: string; workers?: number; chunkFiles?: number; withFixes?: boolean; onProgress?: (n: number, total: number) => void; onPhase?: (name: string) => void; root?: string }, silenced: () => { finding: Finding; reason: string }[]) {
     // A sub-folder of a project is read with the project: its other side may lie elsewhere in the
     // tree; only findings located in the given paths are reported.
     const root = opts.root && !paths.some((p) => path.resolve(p) === path.resolve(opts.root!)) ? path.resolve(opts.root) : undefined;
@@ -515,7 +526,7 @@ export class Workspace {
       const a = path.resolve(p);
       return f.range.file === a || f.range.file.startsWith(a.endsWith(path.sep) ? a : a + path.sep);
     });
-    return { findings: sortFindings(dedupe(all)).filter(inPaths), fixes, files: walk.files.length, chunks: plan.length, largestChunk: Math.max(0, ...plan.map((c) => c.length)) };
+    return { findings: sortFindings(dedupe(all)).filter(inPaths), suppressed: silenced().filter((s) => inPaths(s.finding)), fixes, files: walk.files.length, chunks: plan.length, largestChunk: Math.max(0, ...plan.map((c) => c.length)) };
   }
 
   /** Severity overrides, suppressions, de-duplication and ordering. */

@@ -47,12 +47,12 @@ export function formatJson(findings: JsonFinding[]): string {
 
 export function formatText(findings: JsonFinding[], color: boolean): string {
   const c = (code: string, s: string) => (color ? `\x1b[${code}m${s}\x1b[0m` : s);
-  const sevColor: Record<string, string> = { error: "31", warning: "33", info: "36", hint: "2" };
+  const sevColor: Record<string, string> = { error: "31", warning: "33", note: "36" };
+  // info and hint print as gcc's `note` so that editors' and CI's problem matchers pick them up
+  const label = (s: string) => (s === "info" || s === "hint" ? "note" : s);
   const lines: string[] = [];
   for (const f of findings) {
-    // gcc's words: info and hint are printed as `note`, so log matchers for gcc see them
-    const word = f.severity === "info" || f.severity === "hint" ? "note" : f.severity;
-    lines.push(`${f.file}:${f.line}:${f.column}: ${c(sevColor[f.severity] ?? "0", word)}: ${f.message} [${f.rule}]`);
+    lines.push(`${f.file}:${f.line}:${f.column}: ${c(sevColor[label(f.severity)] ?? "0", label(f.severity))}: ${f.message} [${f.rule}]`);
     for (const r of f.related) lines.push(`    ${r.file}:${r.line}:${r.column}: ${r.message}`);
     for (const fx of f.fixes ?? []) {
       lines.push(`    fix: ${fx.title}`);
@@ -75,25 +75,40 @@ export function formatText(findings: JsonFinding[], color: boolean): string {
 
 const SARIF_LEVEL: Record<string, string> = { error: "error", warning: "warning", info: "note", hint: "note" };
 
-/**
- * A fingerprint that survives moved lines: the rule, the file, and the message with its line and
- * column numbers taken out (`sonar_kernels.h:19` → `sonar_kernels.h:#`), plus the number of earlier
- * findings with the same three (two identical findings in one file stay two results).
- */
-export function fingerprints(findings: JsonFinding[]): string[] {
-  const seen = new Map<string, number>();
-  return findings.map((f) => {
-    const msg = f.message.replace(/:\d+(?::\d+)?\b/g, ":#").replace(/\bline \d+\b/g, "line #");
-    const base = `${f.rule}\u0000${f.file.split(path.sep).join("/")}\u0000${msg}`;
-    const n = seen.get(base) ?? 0;
-    seen.set(base, n + 1);
-    return createHash("sha256").update(`${base}\u0000${n}`).digest("hex").slice(0, 32);
-  });
+/** What a SARIF log says about the run beside the findings. */
+export interface SarifRun {
+  version: string;
+  /** file:// URI of the folder the relative paths start from (%SRCROOT%). */
+  rootUri: string;
+  /** where the rule pages live (package.json `homepage`). */
+  homepage: string;
+  exitCode: number;
+  /** the text of a finding's line, for fingerprints (undefined: file not readable). */
+  lineText: (file: string, line: number) => string | undefined;
+  /** findings an inline `ferrule: accept` comment silenced, with its reason. */
+  suppressed?: { finding: JsonFinding; reason: string }[];
 }
 
-export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version: string, rootUri: string): string {
+/** A fingerprint that survives inserted lines: rule, file, the trimmed text of the finding's line
+ * and the message with line numbers taken out — never the line number itself. */
+export function fingerprint(f: JsonFinding, lineText: string | undefined): string {
+  const msg = f.message.replace(/:\d+(:\d+)?\b/g, "").replace(/\blines? \d+(\s*[-–]\s*\d+)?/g, "line");
+  return createHash("sha256").update([f.rule, f.file, (lineText ?? "").trim(), msg].join("\0")).digest("hex").slice(0, 32);
+}
+
+export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], runInfo: SarifRun): string {
+  const { version, rootUri } = runInfo;
+  const home = runInfo.homepage.replace(/\/$/, "");
+  const seen = new Map<string, number>();
+  const fp = (f: JsonFinding) => {
+    const h = fingerprint(f, runInfo.lineText(f.file, f.line));
+    const n = seen.get(h) ?? 0;
+    seen.set(h, n + 1);
+    // two findings alike in every way but place: numbered in file order (stable while their order is)
+    return n ? `${h}:${n}` : h;
+  };
+  const notices = findings.filter((f) => f.rule === "internal-error" || (f.rule === "file-skipped" && f.message.startsWith("skipped:")));
   const ruleIndex = new Map(rules.map((r, i) => [r.id, i]));
-  const prints = fingerprints(findings);
   const loc = (file: string, line: number, column: number, endLine?: number, endColumn?: number) => ({
     physicalLocation: {
       artifactLocation: { uri: file.split(path.sep).join("/"), uriBaseId: "%SRCROOT%" },
@@ -109,27 +124,40 @@ export function formatSarif(findings: JsonFinding[], rules: RuleMeta[], version:
           driver: {
             name: "ferrule",
             version,
-            informationUri: "https://example.invalid/ferrule",
+            informationUri: home,
             rules: rules.map((r) => ({
               id: r.id,
               name: r.id.replace(/(^|-)(\w)/g, (_m, _d, ch: string) => ch.toUpperCase()),
               shortDescription: { text: r.summary },
               fullDescription: { text: r.why },
-              help: { text: `${r.summary} ${r.why}` },
+              help: { text: `${r.summary} ${r.why}`, markdown: `**${r.summary}**\n\n${r.why}\n\nSee [the rule's page](${home}/blob/main/docs/rules/${r.id}.md).` },
+              helpUri: `${home}/blob/main/docs/rules/${r.id}.md`,
               defaultConfiguration: { level: SARIF_LEVEL[r.severity] },
             })),
           },
         },
-        invocations: [{ executionSuccessful: !findings.some((f) => f.rule === "internal-error") }],
         originalUriBaseIds: { "%SRCROOT%": { uri: rootUri.endsWith("/") ? rootUri : rootUri + "/" } },
-        results: findings.map((f, k) => {
+        invocations: [
+          {
+            executionSuccessful: runInfo.exitCode !== 2 && !notices.some((f) => f.rule === "internal-error"),
+            exitCode: runInfo.exitCode,
+            toolExecutionNotifications: notices.map((f) => ({
+              level: f.rule === "internal-error" ? "error" : "warning",
+              message: { text: f.message },
+              descriptor: { id: f.rule },
+              locations: [loc(f.file, f.line, f.column)],
+            })),
+          },
+        ],
+        results: [...findings.map((f) => ({ f, reason: undefined as string | undefined })), ...(runInfo.suppressed ?? []).map((s) => ({ f: s.finding, reason: s.reason as string | undefined }))].map(({ f, reason }) => {
           const res: Record<string, unknown> = {
             ruleId: f.rule,
             level: SARIF_LEVEL[f.severity],
             message: { text: f.message },
             locations: [loc(f.file, f.line, f.column, f.endLine, f.endColumn)],
-            partialFingerprints: { "ferruleFinding/v1": prints[k] },
+            partialFingerprints: { "ferruleFinding/v1": fp(f) },
           };
+          if (reason !== undefined) res.suppressions = [{ kind: "inSource", justification: reason }];
           const idx = ruleIndex.get(f.rule);
           if (idx !== undefined) res.ruleIndex = idx;
           if (f.related.length) {

@@ -4,6 +4,7 @@
 
 import * as fs from "node:fs";
 import * as path from "node:path";
+import { parseArgs as nodeParseArgs } from "node:util";
 import { pathToFileURL } from "node:url";
 import { Workspace } from "../analysis/workspace.js";
 import { bundleScript } from "../analysis/parallel.js";
@@ -18,25 +19,76 @@ import { setRunDeadline } from "../extract/index.js";
 import { findProjectRoot } from "../analysis/project.js";
 import { codeId, defaultCacheDir, insideAny } from "../analysis/facts-cache.js";
 
-export const VERSION = "0.1.0";
+import pkg from "../../../package.json";
+
+/** The version of the package (package.json), printed by `--version`. */
+export const VERSION: string = pkg.version;
 
 class UsageError extends Error {}
 
-const HELP = `ferrule ${VERSION} — checks the C ABI seam between Rust and C/C++
+type Level = "error" | "warning" | "note";
+
+const USAGE = `ferrule ${VERSION} — checks the C ABI seam between Rust and C/C++
 
 usage:
   ferrule check [--format text|json|sarif] [--target TRIPLE]... [--config FILE] [--show-fixes]
-                [--baseline FILE [--update-baseline]] [--fail-on-skip]
-                [--cache-dir DIR | --no-cache] [PATH...]
+                [--baseline FILE [--update-baseline]] [--fail-on error|warning|note]
+                [--fail-on-skip] [--cache-dir DIR | --no-cache] [PATH...]
   ferrule layout [--target TRIPLE]... [--format json|text] PATH...
   ferrule lsp --stdio
   ferrule --version
+  ferrule COMMAND --help
 
 targets: ${ALL_TRIPLES.join(", ")} (also: x86_64, aarch64, armv7, i686, x86_64-windows)
 facts cache: unchanged files are not read again; default folder $XDG_CACHE_HOME/ferrule or
-  ~/.cache/ferrule (%LOCALAPPDATA%\ferrule\cache on Windows; FERRULE_CACHE_DIR overrides it)
-exit codes: 0 clean, 1 findings at error severity, 2 usage or configuration error
+  ~/.cache/ferrule (%LOCALAPPDATA%\\ferrule\\cache on Windows; FERRULE_CACHE_DIR overrides it)
+exit codes: 0 clean, 1 findings at or above --fail-on (default: error), 2 usage or configuration error
+colours: text output is coloured on a terminal; NO_COLOR (any value) turns colours off, FORCE_COLOR=1 on
 `;
+
+const HELPS: Record<string, string> = {
+  check: `usage: ferrule check [OPTIONS] [PATH...]
+
+Reads the Rust and C/C++ files under each PATH (default: the current folder) without building
+them and reports slips at the seam between them.
+
+options:
+  --format text|json|sarif   output: gcc-style lines (default), JSON version 1, or SARIF 2.1.0
+  --target TRIPLE            check for this target (repeatable; default: the targets in
+                             .ferrule.toml, else ferrule's default set)
+  --config FILE              use this .ferrule.toml instead of the nearest one above PATH
+  --show-fixes               print the edits of each finding's quick-fix (text, JSON and SARIF)
+  --baseline FILE            report only findings not in FILE (a baseline written earlier)
+  --update-baseline          write every current finding to the --baseline FILE and report none
+  --fail-on error|warning|note
+                             lowest severity that makes the run exit 1 (default: error)
+  --fail-on-skip             exit 1 when a file was not read (size, time, or an error)
+  --cache-dir DIR            folder of the facts cache (default: $XDG_CACHE_HOME/ferrule or ~/.cache/ferrule)
+  --no-cache                 read every file; write no cache
+  -h, --help                 this text
+
+exit codes: 0 nothing at or above --fail-on, 1 findings at or above it, 2 usage or configuration error
+targets: ${ALL_TRIPLES.join(", ")}
+`,
+  layout: `usage: ferrule layout [OPTIONS] PATH...
+
+Prints the size, alignment and field offsets ferrule computes for each #[repr(C)] struct and
+C struct under PATH, per target.
+
+options:
+  --format text|json   output (default: text)
+  --target TRIPLE      target to lay out for (repeatable)
+  -h, --help           this text
+`,
+  lsp: `usage: ferrule lsp --stdio
+
+Runs the language server over standard input and output (Language Server Protocol).
+
+options:
+  --stdio        talk LSP over stdin/stdout (required)
+  -h, --help     this text
+`,
+};
 
 interface Opts {
   cmd: string;
@@ -48,60 +100,107 @@ interface Opts {
   stdio: boolean;
   /** --fail-on-skip: a file skipped for size, time or an error fails the run (exit 1). */
   failOnSkip: boolean;
+  /** --fail-on: the lowest severity that fails the run. */
+  failOn: Level;
   baseline?: string;
   updateBaseline: boolean;
   /** --cache-dir DIR: the facts cache's folder; --no-cache: none. */
   cacheDir?: string;
   noCache: boolean;
+  /** set by --help / --version: the text to print, exit 0. */
+  print?: string;
 }
+
+const OPTIONS = {
+  format: { type: "string" },
+  target: { type: "string", multiple: true },
+  config: { type: "string" },
+  "show-fixes": { type: "boolean" },
+  baseline: { type: "string" },
+  "update-baseline": { type: "boolean" },
+  "fail-on": { type: "string" },
+  "fail-on-skip": { type: "boolean" },
+  "cache-dir": { type: "string" },
+  "no-cache": { type: "boolean" },
+  stdio: { type: "boolean" },
+  help: { type: "boolean", short: "h" },
+  // options language clients add when they start a server (vscode-languageclient appends
+  // --clientProcessId=N); vscode-languageserver reads them from argv itself
+  clientProcessId: { type: "string" },
+  "node-ipc": { type: "boolean" },
+} as const;
+
+const ALLOWED: Record<string, string[]> = {
+  check: ["format", "target", "config", "show-fixes", "baseline", "update-baseline", "fail-on", "fail-on-skip", "cache-dir", "no-cache", "help"],
+  layout: ["format", "target", "cache-dir", "no-cache", "help"],
+  lsp: ["stdio", "help", "clientProcessId", "node-ipc"],
+};
 
 function parseArgs(argv: string[]): Opts {
   const [cmd, ...rest] = argv;
-  if (!cmd || cmd === "--help" || cmd === "-h" || cmd === "help") throw new UsageError("");
+  if (cmd === "--version" || cmd === "-V") return { ...blank("version"), print: `ferrule ${VERSION}\n` };
+  if (!cmd) throw new UsageError("");
+  if (cmd === "--help" || cmd === "-h" || cmd === "help") return { ...blank("help"), print: USAGE };
   if (!["check", "layout", "lsp"].includes(cmd)) throw new UsageError(`unknown command \`${cmd}\` (expected check, layout or lsp)`);
-  const o: Opts = { cmd, format: cmd === "layout" ? "text" : "text", targets: [], paths: [], showFixes: false, stdio: false, failOnSkip: false, updateBaseline: false, noCache: false };
-  for (let i = 0; i < rest.length; i++) {
-    const a = rest[i]!;
-    const val = (): string => {
-      const eq = a.indexOf("=");
-      if (eq > 0) return a.slice(eq + 1);
-      const v = rest[++i];
-      if (v === undefined) throw new UsageError(`${a} needs a value`);
-      return v;
-    };
-    const flag = a.split("=")[0];
-    if (flag === "--format") {
-      const v = val();
-      const ok = cmd === "layout" ? ["json", "text"] : ["text", "json", "sarif"];
-      if (!ok.includes(v)) throw new UsageError(`unknown format \`${v}\` (expected ${ok.join(", ")})`);
-      o.format = v;
-    } else if (flag === "--target") {
-      const v = val();
-      const t = parseTriple(v);
-      if (!t) throw new UsageError(`unknown target \`${v}\` (known: ${ALL_TRIPLES.join(", ")})`);
-      if (!o.targets.includes(t)) o.targets.push(t);
-    } else if (flag === "--config") o.config = val();
-    else if (flag === "--show-fixes") o.showFixes = true;
-    else if (flag === "--baseline") o.baseline = val();
-    else if (flag === "--update-baseline") o.updateBaseline = true;
-    else if (flag === "--fail-on-skip") o.failOnSkip = true;
-    else if (flag === "--cache-dir") o.cacheDir = val();
-    else if (flag === "--no-cache") o.noCache = true;
-    else if (flag === "--stdio") o.stdio = true;
-    // Options language clients add when they start a server (vscode-languageclient appends
-    // --clientProcessId=N); vscode-languageserver reads them from argv itself.
-    else if (cmd === "lsp" && (flag === "--clientProcessId" || flag === "--node-ipc")) {
-      if (flag === "--node-ipc") o.stdio = true;
-    }
-    else if (a === "--help" || a === "-h") throw new UsageError("");
-    else if (a.startsWith("-")) throw new UsageError(`unknown option \`${a}\``);
-    else o.paths.push(a);
+  let parsed;
+  try {
+    parsed = nodeParseArgs({ args: rest, options: OPTIONS, allowPositionals: true, strict: true });
+  } catch (e) {
+    // node's messages name the option; keep them on one line
+    const m = /Unknown option '([^']+)'/.exec((e as Error).message);
+    throw new UsageError(m ? `unknown option \`${m[1]}\` (see ferrule ${cmd} --help)` : (e as Error).message.split("\n")[0]!);
   }
+  const v = parsed.values as Record<string, unknown>;
+  for (const k of Object.keys(v)) {
+    if (!ALLOWED[cmd]!.includes(k)) throw new UsageError(`unknown option \`--${k}\` for ${cmd} (see ferrule ${cmd} --help)`);
+  }
+  const o: Opts = blank(cmd);
+  if (v.help) return { ...o, print: HELPS[cmd] };
+  if (v.format !== undefined) {
+    const f = String(v.format);
+    const ok = cmd === "layout" ? ["json", "text"] : ["text", "json", "sarif"];
+    if (!ok.includes(f)) throw new UsageError(`unknown format \`${f}\` (expected ${ok.join(", ")})`);
+    o.format = f;
+  }
+  for (const t of (v.target as string[] | undefined) ?? []) {
+    const tr = parseTriple(t);
+    if (!tr) throw new UsageError(`unknown target \`${t}\` (known: ${ALL_TRIPLES.join(", ")})`);
+    if (!o.targets.includes(tr)) o.targets.push(tr);
+  }
+  if (v["fail-on"] !== undefined) {
+    const f = String(v["fail-on"]);
+    if (f !== "error" && f !== "warning" && f !== "note") throw new UsageError(`unknown --fail-on level \`${f}\` (expected error, warning or note)`);
+    o.failOn = f;
+  }
+  if (typeof v.config === "string") o.config = v.config;
+  if (typeof v.baseline === "string") o.baseline = v.baseline;
+  o.showFixes = !!v["show-fixes"];
+  o.updateBaseline = !!v["update-baseline"];
+  o.failOnSkip = !!v["fail-on-skip"];
+  if (typeof v["cache-dir"] === "string") o.cacheDir = v["cache-dir"];
+  o.noCache = !!v["no-cache"];
+  o.stdio = !!v.stdio || !!v["node-ipc"];
+  o.paths = parsed.positionals;
   if (cmd === "lsp" && !o.stdio) throw new UsageError("lsp needs --stdio");
   if (o.updateBaseline && !o.baseline) throw new UsageError("--update-baseline needs --baseline FILE");
   if (o.noCache && o.cacheDir !== undefined) throw new UsageError("--cache-dir and --no-cache exclude each other");
   return o;
 }
+
+function blank(cmd: string): Opts {
+  return { cmd, format: "text", targets: [], paths: [], showFixes: false, stdio: false, failOnSkip: false, failOn: "error", updateBaseline: false, noCache: false };
+}
+
+/** Colours on stdout: NO_COLOR (non-empty) turns them off, FORCE_COLOR (not 0/false) turns them on (https://no-color.org, common practice). */
+export function useColor(isTTY: boolean, env: NodeJS.ProcessEnv = process.env): boolean {
+  if (env.NO_COLOR) return false;
+  const force = env.FORCE_COLOR;
+  if (force !== undefined && force !== "") return force !== "0" && force !== "false";
+  return isTTY;
+}
+
+const RANK: Record<string, number> = { error: 3, warning: 2, info: 1, hint: 1 };
+const LEVEL_RANK: Record<Level, number> = { error: 3, warning: 2, note: 1 };
 
 function findConfig(paths: string[], cwd: string): string | undefined {
   const starts = paths.length ? paths.map((p) => path.resolve(cwd, p)) : [cwd];
@@ -171,10 +270,14 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
         io.stderr(`ferrule: ${e.message}\n`);
         return 2;
       }
-      io.stdout(HELP);
-      return argv.length ? 0 : 2;
+      io.stdout(USAGE);
+      return 2;
     }
     throw e;
+  }
+  if (o.print !== undefined) {
+    io.stdout(o.print);
+    return 0;
   }
   if (o.cmd === "lsp") {
     const { startServer } = await import("../lsp/server.js");
@@ -286,10 +389,27 @@ export async function run(argv: string[], io: RunIO): Promise<number> {
     io.stderr(`ferrule: ${skipped.length} file(s) not read (their findings are missing): ${skipped.slice(0, 10).map((f) => f.file).join(", ")}${skipped.length > 10 ? ", …" : ""}\n`);
   }
   phase("findings");
+  const exitCode = json.some((f) => RANK[f.severity]! >= LEVEL_RANK[o.failOn]) || (o.failOnSkip && skipped.length > 0) ? 1 : 0;
   if (o.format === "json") io.stdout(formatJson(json));
-  else if (o.format === "sarif") io.stdout(formatSarif(json, allRules(), VERSION, pathToFileURL(io.cwd).href));
-  else io.stdout(formatText(json, useColor(io.isTTY)) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
-  return json.some((f) => f.severity === "error") || (o.failOnSkip && skipped.length > 0) ? 1 : 0;
+  else if (o.format === "sarif") {
+    const lines = new Map<string, string[] | undefined>();
+    const lineText = (file: string, line: number) => {
+      if (!lines.has(file)) {
+        let text: string[] | undefined;
+        try {
+          // a file this run has read already (its findings' file), again as a small regular file
+          text = readSmallRegularFile(path.resolve(io.cwd, file), { limit: 64 * 2 ** 20 }).split(/\r?\n/);
+        } catch {
+          text = undefined;
+        }
+        lines.set(file, text);
+      }
+      return lines.get(file)?.[line - 1];
+    };
+    const suppressed = res.suppressed.map((s) => ({ finding: toJsonFinding(s.finding, io.cwd), reason: s.reason }));
+    io.stdout(formatSarif(json, allRules(), { version: VERSION, rootUri: pathToFileURL(io.cwd).href, homepage: pkg.homepage, exitCode, lineText, suppressed }));
+  } else io.stdout(formatText(json, useColor(io.isTTY)) + (baselined ? `(${baselined} finding(s) in the baseline not shown)\n` : ""));
+  return exitCode;
 }
 
 export async function main(): Promise<void> {
@@ -308,10 +428,3 @@ export async function main(): Promise<void> {
   }
 }
 
-/** Colour on a terminal; `NO_COLOR` (any value) turns it off and `FORCE_COLOR` (not "0") turns
- * it on, the common conventions of command-line tools. */
-export function useColor(tty: boolean, env: NodeJS.ProcessEnv = process.env): boolean {
-  if (env.NO_COLOR !== undefined && env.NO_COLOR !== "") return false;
-  if (env.FORCE_COLOR !== undefined && env.FORCE_COLOR !== "0" && env.FORCE_COLOR !== "false") return true;
-  return tty;
-}
