@@ -259,10 +259,6 @@ export interface RunIO {
 export async function run(argv: string[], io: RunIO): Promise<number> {
   let o: Opts;
   try {
-    if (argv[0] === "--version" || argv[0] === "-V" || argv[0] === "version") {
-      io.stdout(`ferrule ${VERSION}\n`);
-      return 0;
-    }
     o = parseArgs(argv);
   } catch (e) {
     if (e instanceof UsageError) {

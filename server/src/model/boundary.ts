@@ -351,7 +351,7 @@ export class Model {
       // a type declared in a header is what the files including it see; one declared in a
       // .c/.cpp file is local to that translation unit (C 6.2.1 scopes), so on the C side the
       // header's declarations win when there are any
-      const inHeaders = side === "c" && all.length > 1 ? all.filter((d) => HEADER_RE.test(d.file)) : [];
+      const inHeaders = side === "c" && all.length > 1 ? all.filter((d) => HEADER_FILE.test(d.file)) : [];
       const decls = inHeaders.length ? inHeaders : all;
       const alias = decls.find((d) => d.kind === "alias" && d.aliasOf);
       const agg = decls.find((d) => d.kind !== "alias");
@@ -445,4 +445,11 @@ function folderOf(file: string): string {
   return i < 0 ? "" : file.slice(0, i);
 }
 
-const HEADER_RE = /\.(h|hh|hpp|hxx|inl)$/i;
+/** A C/C++ header by its name (what includers see; a .c/.cpp file's own declarations are its own). */
+export const HEADER_FILE = /\.(h|hh|hpp|hxx|inl)$/i;
+
+/** A function both a C file defines and Rust exports: two implementations of one API (a C
+ * original beside its Rust port, one chosen by the build), not a call across the seam. */
+export function twoImplementations(g: SymbolGroup): boolean {
+  return g.c.some((f) => f.role === "def") && g.rust.some((f) => f.role === "export" && f.noMangle && f.isExtern);
+}

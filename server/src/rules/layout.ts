@@ -18,7 +18,7 @@
 // undefined behaviour.
 
 import type { Model } from "../model/boundary.js";
-import { normName } from "../model/boundary.js";
+import { HEADER_FILE, normName, twoImplementations } from "../model/boundary.js";
 import type { AbiType, FnDecl, Range, SourceAssert, TypeDecl } from "../model/types.js";
 import { declLayout, fieldsOn, layoutOf, spellType, type FieldLayout, type Layout } from "../model/layout.js";
 import { compareOn } from "../model/compare.js";
@@ -130,8 +130,6 @@ function visibleFrom(model: Model, header: string, file: string): boolean {
   return false;
 }
 
-const C_HEADER = /\.(h|hh|hpp|hxx|inl)$/i;
-
 /** A field name as Rust and C spell it alike (`r#type` / `type`, `sampleRate` / `sample_rate`). */
 function fieldKey(n: string): string {
   return n.replace(/^r#/, "").replace(/_/g, "").toLowerCase();
@@ -171,7 +169,7 @@ function computePairs(model: Model): Pair[] {
         const same = arr.findIndex((x) => x.name === d.name);
         if (same < 0) arr.push(d);
         // one name declared in a header and in a .c file: the header's is the one other files see
-        else if (!C_HEADER.test(arr[same]!.file) && C_HEADER.test(d.file)) arr[same] = d;
+        else if (!HEADER_FILE.test(arr[same]!.file) && HEADER_FILE.test(d.file)) arr[same] = d;
         cByNorm.set(normName(d.name), arr);
       }
     }
@@ -193,7 +191,7 @@ function computePairs(model: Model): Pair[] {
     // original beside its Rust port, one chosen by the build). What callers see is the header:
     // a struct it leaves opaque (its body only in the C implementation's own files) is that
     // implementation's private state, not the Rust port's mirror
-    const dual = g.c.some((f) => f.role === "def") && g.rust.some((f) => f.role === "export" && f.noMangle && f.isExtern);
+    const dual = twoImplementations(g);
     const protos = g.c.filter((f) => f.role === "proto" && f.inHeader);
     const cands = protos.length ? protos : g.c;
     for (const r of g.rust) {
@@ -228,7 +226,7 @@ function computePairs(model: Model): Pair[] {
         if (p.weak && !seamTypes(model).has(q.r.id)) np.weak = true;
         // a C struct whose body lives in a .c file is that translation unit's private state:
         // met through another struct's field, not through a seam function, it is no sure mirror
-        if (!C_HEADER.test(q.c.file)) np.weak = true;
+        if (!HEADER_FILE.test(q.c.file)) np.weak = true;
         queue.push(np);
       }
     }
@@ -249,7 +247,7 @@ function computePairs(model: Model): Pair[] {
     if (pairedRust.has(d.id)) continue; // a signature pairs it with another C type: that one is its mirror
     add(d, cs[0]!, "they have the same name", false);
     const np = pairs.get(key)!;
-    if (!seamTypes(model).has(d.id) || !C_HEADER.test(cs[0]!.file)) np.weak = true;
+    if (!seamTypes(model).has(d.id) || !HEADER_FILE.test(cs[0]!.file)) np.weak = true;
     named.push(np);
   }
   nest(named);
@@ -286,7 +284,7 @@ function seamTypes(model: Model): Set<string> {
   };
   for (const g of model.symbols.values()) {
     // (two implementations of one function — see computePairs — are not a seam crossing)
-    if (g.c.some((f) => f.role === "def") && g.rust.some((f) => f.role === "export" && f.noMangle && f.isExtern)) continue;
+    if (twoImplementations(g)) continue;
     for (const f of g.rust) {
       if (f.role !== "export" && f.role !== "import") continue;
       for (const p of f.params) visit(p.type, f.file, 0);
@@ -304,7 +302,7 @@ function weaken(p: Pair, out: Finding[], from: number): void {
     const f = out[i]!;
     if (f.severity === "info") continue;
     f.severity = "info";
-    f.message += C_HEADER.test(p.c.file)
+    f.message += HEADER_FILE.test(p.c.file)
       ? ` — paired by name only: no seam function passes \`${p.rust.name}\` or \`${p.c.name}\`, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`
       : ` — \`${p.c.name}\` is private to ${p.c.file.split(/[\\/]/).pop()} and no seam function passes it, so they may never meet (map them with a \`ferrule-mirror\` comment to check them as mirrors)`;
   }
